@@ -1,0 +1,92 @@
+//! Binding energies of every occupied subshell of every ion.
+//!
+//! Rule (our own documented approximation, physics.md §2): the subshell ionized in step
+//! q → q+1 is bound by exactly IE_q; any other subshell s interpolates between its
+//! neutral binding B_s(0) and the exact value IE_{q*} at the first step q* ≥ q that
+//! removes an electron from it, with a Coulomb-shift weight
+//!
+//!   B_s(q) = B_s(0) + [IE_{q*} − B_s(0)] · W_q / W_{q*},  W_q = Σ_{j<q} 2√(Ry·IE_j)/n_j,
+//!
+//! n_j the principal quantum number of the subshell ionized at step j: removing an
+//! electron of binding I from shell n raises the potential inside its orbit by about
+//! e²/⟨r⟩ = 2√(Ry·I)/n for a hydrogenic orbital.
+
+use super::subshell::{Configuration, Subshell};
+use super::ShellState;
+use crate::constants::RYDBERG_EV;
+
+/// Coulomb-shift weights W_q for q = 0 … len (W_0 = 0).
+pub(crate) fn coulomb_shift_sums(ionized: &[Subshell], ionization_energies_ev: &[f64]) -> Vec<f64> {
+    let mut sums = Vec::with_capacity(ionized.len() + 1);
+    let mut w = 0.0;
+    sums.push(w);
+    for (s, ie) in ionized.iter().zip(ionization_energies_ev) {
+        w += 2.0 * (RYDBERG_EV * ie).sqrt() / s.n.max(1) as f64;
+        sums.push(w);
+    }
+    sums
+}
+
+/// Binding energies of the occupied subshells of every charge state.
+///
+/// `configurations[q]` for q = 0 … Z (the last is the bare ion), `ionized[q]` and
+/// `ionization_energies_ev[q]` for q = 0 … Z−1; `neutral_binding_ev(s)` returns the
+/// tabulated neutral binding (already max(edge, IE₀)) or None.
+pub(crate) fn ion_shell_bindings(
+    configurations: &[Configuration],
+    ionized: &[Subshell],
+    ionization_energies_ev: &[f64],
+    neutral_binding_ev: &dyn Fn(Subshell) -> Option<f64>,
+) -> Vec<Vec<ShellState>> {
+    let w = coulomb_shift_sums(ionized, ionization_energies_ev);
+    let ie0 = ionization_energies_ev.first().copied().unwrap_or(0.0);
+    let steps = ionized.len().min(ionization_energies_ev.len());
+    (0..configurations.len())
+        .map(|q| {
+            let config = &configurations[q];
+            config
+                .shells()
+                .iter()
+                .map(|&(s, occupancy)| {
+                    let binding_ev = if q < steps && ionized[q] == s {
+                        ionization_energies_ev[q]
+                    } else {
+                        match end_step(configurations, ionized, q, s) {
+                            Some(q_star) => {
+                                let ie_star = ionization_energies_ev[q_star];
+                                // Where the tables have no edge, the unscaled Coulomb-shift sum
+                                // predicts the neutral binding (physics.md §2).
+                                let b0 = neutral_binding_ev(s)
+                                    .unwrap_or(ie_star - w[q_star])
+                                    .max(ie0);
+                                if w[q_star] > 0.0 {
+                                    b0 + (ie_star - b0) * w[q] / w[q_star]
+                                } else {
+                                    b0
+                                }
+                            }
+                            None => neutral_binding_ev(s).unwrap_or(ie0).max(ie0),
+                        }
+                    };
+                    ShellState {
+                        subshell: s,
+                        occupancy,
+                        binding_ev,
+                    }
+                })
+                .collect()
+        })
+        .collect()
+}
+
+/// First step j ≥ q at which subshell s is the ionized one; failing that (rearrangements
+/// in open d and f shells) the first step at which its occupancy drops.
+fn end_step(configurations: &[Configuration], ionized: &[Subshell], q: usize, s: Subshell) -> Option<usize> {
+    (q..ionized.len())
+        .find(|&j| ionized[j] == s)
+        .or_else(|| {
+            (q..ionized.len()).find(|&j| {
+                configurations.get(j + 1).map_or(0, |c| c.occupancy(s)) < configurations[j].occupancy(s)
+            })
+        })
+}
