@@ -1,0 +1,80 @@
+"""chargecast — plans ion-source runs.
+
+Charge-state distributions in electron-beam traps, photon beams and single-collision
+electron sources; breeding times; ion yields; and the A/q (m/z) neighbourhood of every
+ion in the source. Energies in eV, cross sections in cm², everything else SI; the unit
+is in every parameter name.
+
+Results are planning estimates. Ion sources involve high voltage, X-rays, intense photon
+beams, strong magnets, cryogens and sometimes radioactive species: follow local codes,
+the facility's radiation-safety officer and licensed practice.
+"""
+
+from __future__ import annotations
+
+from chargecast._core import (
+    ChargecastError,
+    ChargeOutOfRangeError,
+    InvalidParameterError,
+    NoDataError,
+    ScenarioError,
+    UnknownElementError,
+    UnknownGasError,
+)
+
+# --- atoms and electron-impact cross sections (foundation)
+from chargecast.atoms import (
+    Element,
+    Ion,
+    breeding_ladder,
+    breeding_time_s,
+    element,
+    j_tau_c_cm2,
+    lotz_cross_section_cm2,
+    lotz_peak_energy_ev,
+    lotz_rate_coefficient_cm3_s,
+)
+# --- engine: electron beam, trap, evolution
+from chargecast.evolution import Evolution
+from chargecast.trap import (
+    BeamTrap,
+    ElectronBeam,
+    EnergyScan,
+    brillouin_radius_m,
+    effective_energy_ev,
+    herrmann_radius_m,
+    solve_rate_equations,
+    steady_state_rate_equations,
+)
+# --- photon and single-collision sources
+# --- spectrum: masses, A/q lines, overlaps
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "BeamTrap",
+    "ElectronBeam",
+    "EnergyScan",
+    "Evolution",
+    "brillouin_radius_m",
+    "effective_energy_ev",
+    "herrmann_radius_m",
+    "solve_rate_equations",
+    "steady_state_rate_equations",
+    "Element",
+    "Ion",
+    "breeding_ladder",
+    "breeding_time_s",
+    "element",
+    "j_tau_c_cm2",
+    "lotz_cross_section_cm2",
+    "lotz_peak_energy_ev",
+    "lotz_rate_coefficient_cm3_s",
+    "ChargecastError",
+    "ChargeOutOfRangeError",
+    "InvalidParameterError",
+    "NoDataError",
+    "ScenarioError",
+    "UnknownElementError",
+    "UnknownGasError",
+]

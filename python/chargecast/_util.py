@@ -1,0 +1,76 @@
+"""Small helpers shared by the Python layer: numpy conversion with chargecast errors,
+optional-dependency imports with clear messages."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+from chargecast._core import InvalidParameterError
+
+
+def as_float_array(name: str, value: Any) -> tuple[np.ndarray, tuple[int, ...]]:
+    """Convert ``value`` to a contiguous 1-D float64 array, remembering its shape.
+
+    Raises InvalidParameterError (a ValueError) for anything numpy cannot read as numbers.
+    """
+    try:
+        arr = np.asarray(value, dtype=np.float64)
+    except (TypeError, ValueError, OverflowError) as exc:
+        raise InvalidParameterError(
+            f"invalid {name} = {value!r}: must be a number or an array of numbers ({exc})"
+        ) from None
+    return np.ascontiguousarray(arr.ravel()), arr.shape
+
+
+def restore(out: np.ndarray, shape: tuple[int, ...]) -> Any:
+    """Give ``out`` the caller's shape back; a scalar input gives a Python float."""
+    if shape == ():
+        return float(out[0])
+    return out.reshape(shape)
+
+
+def as_float(name: str, value: Any) -> float:
+    """A single finite-or-not float (the core checks finiteness and sign)."""
+    if isinstance(value, bool):
+        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a number, not a bool")
+    try:
+        return float(value)
+    except (TypeError, ValueError, OverflowError):
+        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a number") from None
+
+
+def as_int(name: str, value: Any) -> int:
+    """A whole number (charge states and the like)."""
+    if isinstance(value, bool) or not isinstance(value, (int, np.integer)):
+        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a whole number")
+    return int(value)
+
+
+def require_pandas() -> Any:
+    try:
+        import pandas as pd
+    except ImportError:  # pragma: no cover - depends on the environment
+        raise ImportError(
+            "to_pandas() needs pandas: pip install 'chargecast[pandas]' (or pip install pandas)"
+        ) from None
+    return pd
+
+
+def require_pyplot() -> Any:
+    try:
+        import matplotlib
+
+        if matplotlib.get_backend().lower() not in ("agg", "module://matplotlib_inline.backend_inline"):
+            pass
+        import matplotlib.pyplot as plt
+    except ImportError:  # pragma: no cover - depends on the environment
+        raise ImportError(
+            "plot() needs matplotlib: pip install 'chargecast[plot]' (or pip install matplotlib)"
+        ) from None
+    return plt
+
+
+# Colour-blind-safe palette (Okabe & Ito 2008), used by every plot.
+PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442", "#000000"]

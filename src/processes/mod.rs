@@ -1,0 +1,11 @@
+//! Cross sections and rate coefficients as pure functions of plain numbers (energies,
+//! binding energies, occupancies, charges). One module per physical process; element data
+//! are wired in by the callers.
+
+pub mod charge_exchange;
+pub mod electron_impact;
+pub mod gases;
+pub mod kramers;
+pub mod lotz;
+pub mod radiative_recombination;
+pub mod special;

@@ -1,0 +1,300 @@
+//! Bindings of the atoms layer and of electron-impact ionization: elements, ions,
+//! Lotz cross sections and rate coefficients, stepwise breeding.
+
+use numpy::{PyArray1, PyReadonlyArray1};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+use super::{element_arg, guard, to_py, vec_arg};
+use crate::atoms::{Element, Ion};
+use crate::processes::electron_impact::{
+    ionization_cross_sections_cm2, ionization_rate_coefficients_cm3_s, peak_energy_ev,
+};
+use crate::processes::lotz::LotzConstants;
+use crate::sources::breeding::{breeding_ladder, breeding_time_s, j_tau_c_cm2};
+
+/// A chemical element: ionization energies, ions, isotopes and X-ray levels.
+#[pyclass(name = "Element", module = "chargecast", frozen)]
+pub(crate) struct PyElement {
+    pub(crate) inner: &'static Element,
+}
+
+#[pymethods]
+impl PyElement {
+    #[getter]
+    fn z(&self) -> u32 {
+        self.inner.z()
+    }
+    #[getter]
+    fn symbol(&self) -> &str {
+        self.inner.symbol()
+    }
+    #[getter]
+    fn name(&self) -> &str {
+        self.inner.name()
+    }
+    #[getter]
+    fn atomic_weight_u(&self) -> f64 {
+        self.inner.atomic_weight_u()
+    }
+    #[getter]
+    fn ionization_energies_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.ionization_energies_ev().to_vec())
+    }
+    #[getter]
+    fn ionization_uncertainties_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.ionization_uncertainties_ev().to_vec())
+    }
+    #[getter]
+    fn ionization_energy_kinds(&self) -> Vec<&'static str> {
+        self.inner.ionization_energy_kinds().iter().map(|k| k.label()).collect()
+    }
+    #[getter]
+    fn is_complete(&self) -> bool {
+        self.inner.is_complete()
+    }
+    fn ion(&self, charge: i64) -> PyResult<PyIon> {
+        Ok(PyIon {
+            inner: self.inner.ion(charge)?,
+        })
+    }
+    fn configuration(&self, charge: i64) -> PyResult<String> {
+        Ok(self.inner.ion(charge)?.configuration().label())
+    }
+    /// (mass_number, mass_u, abundance or None) of every isotope with a measured mass.
+    fn isotopes(&self) -> Vec<(u32, f64, Option<f64>)> {
+        self.inner
+            .isotopes()
+            .iter()
+            .map(|i| (i.mass_number, i.mass_u, i.abundance))
+            .collect()
+    }
+    /// (edge, subshell, binding_ev, jump_ratio, fluorescence_yield) of the neutral atom.
+    fn xray_levels(&self) -> Vec<(String, String, f64, f64, f64)> {
+        self.inner
+            .xray_levels()
+            .iter()
+            .map(|l| (l.edge.clone(), l.subshell.label(), l.binding_ev, l.jump_ratio, l.fluorescence_yield))
+            .collect()
+    }
+    fn __repr__(&self) -> String {
+        format!("Element({:?}, z={})", self.inner.symbol(), self.inner.z())
+    }
+    fn __eq__(&self, other: &Bound<'_, PyAny>) -> bool {
+        other
+            .cast::<PyElement>()
+            .map(|o| o.get().inner.z() == self.inner.z())
+            .unwrap_or(false)
+    }
+    fn __hash__(&self) -> u64 {
+        self.inner.z() as u64
+    }
+}
+
+/// One charge state of an element.
+#[pyclass(name = "Ion", module = "chargecast", frozen)]
+pub(crate) struct PyIon {
+    inner: Ion,
+}
+
+#[pymethods]
+impl PyIon {
+    #[getter]
+    fn element(&self) -> PyElement {
+        PyElement {
+            inner: self.inner.element,
+        }
+    }
+    #[getter]
+    fn charge(&self) -> u32 {
+        self.inner.charge
+    }
+    #[getter]
+    fn electrons(&self) -> u32 {
+        self.inner.electrons()
+    }
+    #[getter]
+    fn configuration(&self) -> String {
+        self.inner.configuration().label()
+    }
+    #[getter]
+    fn ionization_energy_ev(&self) -> Option<f64> {
+        self.inner.ionization_energy_ev()
+    }
+    #[getter]
+    fn threshold_ev(&self) -> f64 {
+        self.inner.threshold_ev()
+    }
+    #[getter]
+    fn ionized_subshell(&self) -> Option<String> {
+        self.inner.ionized_subshell().map(|s| s.label())
+    }
+    #[getter]
+    fn valence_shell(&self) -> (u32, u32) {
+        self.inner.valence_shell()
+    }
+    /// [(label, occupancy, binding_ev)] of every occupied subshell, inner first.
+    fn subshells(&self) -> Vec<(String, u32, f64)> {
+        self.inner
+            .subshells()
+            .iter()
+            .map(|s| (s.subshell.label(), s.occupancy, s.binding_ev))
+            .collect()
+    }
+    fn __repr__(&self) -> String {
+        format!("Ion({:?}, charge={})", self.inner.element.symbol(), self.inner.charge)
+    }
+}
+
+/// Look up an element by symbol, name or Z.
+#[pyfunction]
+fn element(value: &Bound<'_, PyAny>) -> PyResult<PyElement> {
+    Ok(PyElement {
+        inner: element_arg(value)?,
+    })
+}
+
+fn constants(a: Option<f64>, b: Option<f64>, c: Option<f64>) -> Option<LotzConstants> {
+    if a.is_none() && b.is_none() && c.is_none() {
+        return None;
+    }
+    let d = LotzConstants::SIMPLIFIED;
+    Some(LotzConstants {
+        a_cm2_ev2: a.unwrap_or(d.a_cm2_ev2),
+        b: b.unwrap_or(d.b),
+        c: c.unwrap_or(d.c),
+    })
+}
+
+#[pyfunction]
+#[pyo3(signature = (element, charge, energy_ev, a=None, b=None, c=None))]
+fn lotz_cross_section_cm2<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: i64,
+    energy_ev: PyReadonlyArray1<'py, f64>,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let energies = vec_arg(&energy_ev);
+    let out = guard(py, || ionization_cross_sections_cm2(el, charge, &energies, constants(a, b, c)))?;
+    Ok(to_py(py, out))
+}
+
+#[pyfunction]
+#[pyo3(signature = (element, charge, temperature_ev, a=None, b=None, c=None))]
+fn lotz_rate_coefficient_cm3_s<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: i64,
+    temperature_ev: PyReadonlyArray1<'py, f64>,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let temps = vec_arg(&temperature_ev);
+    let out = guard(py, || ionization_rate_coefficients_cm3_s(el, charge, &temps, constants(a, b, c)))?;
+    Ok(to_py(py, out))
+}
+
+#[pyfunction]
+#[pyo3(signature = (element, charge, a=None, b=None, c=None))]
+fn lotz_peak_energy_ev(
+    element: &Bound<'_, PyAny>,
+    charge: i64,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<f64> {
+    Ok(peak_energy_ev(element_arg(element)?, charge, constants(a, b, c))?)
+}
+
+/// Ionization-only breeding time (s) to reach `charge`, one value per energy.
+#[pyfunction]
+#[pyo3(signature = (element, charge, energy_ev, current_density_a_cm2, a=None, b=None, c=None))]
+#[allow(clippy::too_many_arguments)]
+fn _breeding_time_s<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: i64,
+    energy_ev: PyReadonlyArray1<'py, f64>,
+    current_density_a_cm2: f64,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let energies = vec_arg(&energy_ev);
+    let k = constants(a, b, c);
+    let out = guard(py, || {
+        energies
+            .iter()
+            .map(|e| breeding_time_s(el, charge, *e, current_density_a_cm2, k))
+            .collect()
+    })?;
+    Ok(to_py(py, out))
+}
+
+/// Ionization factor jτ (C/cm²) to reach `charge`, one value per energy.
+#[pyfunction]
+#[pyo3(signature = (element, charge, energy_ev, a=None, b=None, c=None))]
+fn _j_tau_c_cm2<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: i64,
+    energy_ev: PyReadonlyArray1<'py, f64>,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let energies = vec_arg(&energy_ev);
+    let k = constants(a, b, c);
+    let out = guard(py, || energies.iter().map(|e| j_tau_c_cm2(el, charge, *e, k)).collect())?;
+    Ok(to_py(py, out))
+}
+
+/// The breeding ladder as a dict of equal-length arrays (one entry per step q → q+1).
+#[pyfunction]
+#[pyo3(signature = (element, charge, energy_ev, current_density_a_cm2, a=None, b=None, c=None))]
+#[allow(clippy::too_many_arguments)]
+fn _breeding_ladder<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: i64,
+    energy_ev: f64,
+    current_density_a_cm2: f64,
+    a: Option<f64>,
+    b: Option<f64>,
+    c: Option<f64>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let el = element_arg(element)?;
+    let k = constants(a, b, c);
+    let steps = guard(py, || breeding_ladder(el, charge, energy_ev, current_density_a_cm2, k))?;
+    let d = PyDict::new(py);
+    let col = |f: &dyn Fn(&crate::sources::breeding::BreedingStep) -> f64| -> Vec<f64> { steps.iter().map(f).collect() };
+    d.set_item("charge", steps.iter().map(|s| s.charge).collect::<Vec<_>>())?;
+    d.set_item("ionization_energy_ev", to_py(py, col(&|s| s.ionization_energy_ev)))?;
+    d.set_item("cross_section_cm2", to_py(py, col(&|s| s.cross_section_cm2)))?;
+    d.set_item("rate_per_s", to_py(py, col(&|s| s.rate_per_s)))?;
+    d.set_item("time_to_next_s", to_py(py, col(&|s| s.time_to_next_s)))?;
+    d.set_item("j_tau_c_cm2", to_py(py, col(&|s| s.j_tau_c_cm2)))?;
+    d.set_item("peak_energy_ev", to_py(py, col(&|s| s.peak_energy_ev)))?;
+    Ok(d)
+}
+
+pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_class::<PyElement>()?;
+    m.add_class::<PyIon>()?;
+    m.add_function(wrap_pyfunction!(element, m)?)?;
+    m.add_function(wrap_pyfunction!(lotz_cross_section_cm2, m)?)?;
+    m.add_function(wrap_pyfunction!(lotz_rate_coefficient_cm3_s, m)?)?;
+    m.add_function(wrap_pyfunction!(lotz_peak_energy_ev, m)?)?;
+    m.add_function(wrap_pyfunction!(_breeding_time_s, m)?)?;
+    m.add_function(wrap_pyfunction!(_j_tau_c_cm2, m)?)?;
+    m.add_function(wrap_pyfunction!(_breeding_ladder, m)?)?;
+    Ok(())
+}

@@ -1,0 +1,61 @@
+//! Argument conversion shared by the bindings: elements given as symbol, name or Z;
+//! numpy arrays; a guard that turns any stray panic into a Python exception.
+
+use std::panic::{catch_unwind, AssertUnwindSafe};
+
+use numpy::{IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1};
+use pyo3::prelude::*;
+use pyo3::types::{PyBool, PyInt, PyString};
+
+use super::errors::ChargecastError;
+use crate::atoms::{element, element_by_z, Element};
+use crate::error::{Error, Result};
+
+/// An element from a Python str (symbol, name or digits) or int (Z).
+pub(crate) fn element_arg(value: &Bound<'_, PyAny>) -> Result<&'static Element> {
+    if value.is_instance_of::<PyBool>() {
+        return Err(bad_element(value));
+    }
+    if value.is_instance_of::<PyInt>() {
+        let z: i64 = value.extract().map_err(|_| bad_element(value))?;
+        return element_by_z(z);
+    }
+    if value.is_instance_of::<PyString>() {
+        let s: String = value.extract().map_err(|_| bad_element(value))?;
+        return element(&s);
+    }
+    Err(bad_element(value))
+}
+
+fn bad_element(value: &Bound<'_, PyAny>) -> Error {
+    Error::UnknownElement {
+        given: value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into()),
+        max_z: 118,
+    }
+}
+
+/// Run `f` with the GIL released and turn a panic (a bug, never expected) into a
+/// `ChargecastError` instead of letting it reach Python.
+pub(crate) fn guard<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T> + Send) -> PyResult<T> {
+    let out = py.detach(|| catch_unwind(AssertUnwindSafe(f)));
+    match out {
+        Ok(Ok(v)) => Ok(v),
+        Ok(Err(e)) => Err(e.into()),
+        Err(_) => Err(ChargecastError::new_err(
+            "internal error in chargecast (please report it with the inputs that caused it)",
+        )),
+    }
+}
+
+/// Helpers to hand vectors and matrices back to numpy.
+pub(crate) fn to_py<'py>(py: Python<'py>, v: Vec<f64>) -> Bound<'py, PyArray1<f64>> {
+    v.into_pyarray(py)
+}
+
+pub(crate) fn matrix_to_py<'py>(py: Python<'py>, a: ndarray::Array2<f64>) -> Bound<'py, PyArray2<f64>> {
+    a.into_pyarray(py)
+}
+
+pub(crate) fn vec_arg(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
+    a.as_array().iter().copied().collect()
+}

@@ -1,0 +1,47 @@
+//! Python exception classes, one per core error variant; all derive from
+//! `ChargecastError`, itself a `ValueError` (bad input is a value problem).
+
+use pyo3::create_exception;
+use pyo3::exceptions::PyValueError;
+use pyo3::prelude::*;
+
+use crate::error::Error;
+
+create_exception!(chargecast, ChargecastError, PyValueError, "Base class of every chargecast error.");
+create_exception!(chargecast, UnknownElementError, ChargecastError, "The element symbol, name or Z is not known.");
+create_exception!(chargecast, ChargeOutOfRangeError, ChargecastError, "A charge state outside the allowed range.");
+create_exception!(chargecast, NoDataError, ChargecastError, "The tables hold no data for this ion or quantity.");
+create_exception!(chargecast, InvalidParameterError, ChargecastError, "A parameter that is NaN, infinite, non-positive or inconsistent.");
+create_exception!(chargecast, UnknownGasError, InvalidParameterError, "A gas that is not in the built-in gas table.");
+create_exception!(chargecast, ScenarioError, ChargecastError, "A scenario file that cannot be read or breaks the schema.");
+
+/// The Python exception for a core error.
+pub(crate) fn to_py_err(err: Error) -> PyErr {
+    let msg = err.to_string();
+    match err {
+        Error::UnknownElement { .. } => UnknownElementError::new_err(msg),
+        Error::ChargeOutOfRange { .. } => ChargeOutOfRangeError::new_err(msg),
+        Error::NoData { .. } => NoDataError::new_err(msg),
+        Error::InvalidParameter { .. } => InvalidParameterError::new_err(msg),
+        Error::UnknownGas { .. } => UnknownGasError::new_err(msg),
+        Error::InvalidScenario { .. } => ScenarioError::new_err(msg),
+    }
+}
+
+impl From<Error> for PyErr {
+    fn from(err: Error) -> PyErr {
+        to_py_err(err)
+    }
+}
+
+pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    let py = m.py();
+    m.add("ChargecastError", py.get_type::<ChargecastError>())?;
+    m.add("UnknownElementError", py.get_type::<UnknownElementError>())?;
+    m.add("ChargeOutOfRangeError", py.get_type::<ChargeOutOfRangeError>())?;
+    m.add("NoDataError", py.get_type::<NoDataError>())?;
+    m.add("InvalidParameterError", py.get_type::<InvalidParameterError>())?;
+    m.add("UnknownGasError", py.get_type::<UnknownGasError>())?;
+    m.add("ScenarioError", py.get_type::<ScenarioError>())?;
+    Ok(())
+}

@@ -1,0 +1,7 @@
+//! (bindings of this area are being built)
+
+use pyo3::prelude::*;
+
+pub(crate) fn register(_m: &Bound<'_, PyModule>) -> PyResult<()> {
+    Ok(())
+}

@@ -1,0 +1,342 @@
+//! The electron-beam ion trap: an electron beam of given energy and current density
+//! holding ions of one element for a confinement time, with radiative recombination and
+//! charge exchange on the residual gas. Turns the settings into the rate network of an
+//! element (physics.md §3–§7).
+
+use rayon::prelude::*;
+
+use super::electron_beam::{electrons_in_trap, ElectronBeam};
+use crate::atoms::Element;
+use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
+use crate::error::{require_all_positive, require_non_negative, require_positive, Error, Result};
+use crate::network::RateNetwork;
+use crate::processes::charge_exchange::{gas_number_density_m3, muller_salzborn_cross_section_cm2};
+use crate::processes::electron_impact::ionization_cross_sections_cm2;
+use crate::processes::gases::{gas, Gas};
+use crate::processes::lotz::LotzConstants;
+use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
+use crate::solve::{evolve, steady_state};
+
+/// One residual-gas component.
+#[derive(Clone, Debug)]
+pub struct GasComponent {
+    pub gas: &'static Gas,
+    pub pressure_pa: f64,
+}
+
+/// Which processes the network includes (all on by default).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Processes {
+    pub ionization: bool,
+    pub radiative_recombination: bool,
+    pub charge_exchange: bool,
+}
+
+impl Default for Processes {
+    fn default() -> Self {
+        Processes {
+            ionization: true,
+            radiative_recombination: true,
+            charge_exchange: true,
+        }
+    }
+}
+
+/// An electron-beam trap: beam, trap length, residual gas, ion temperature.
+#[derive(Clone, Debug)]
+pub struct BeamTrap {
+    pub beam: ElectronBeam,
+    pub length_m: f64,
+    pub residual_gas: Vec<GasComponent>,
+    /// Ion temperature kT (eV): sets the ion speed in charge-exchange collisions.
+    pub ion_temperature_ev: f64,
+    /// Residual-gas temperature (K) for n = p/(k_B T).
+    pub gas_temperature_k: f64,
+    /// Fraction of the electron space charge compensated by ions (0…1), for yields.
+    pub compensation: f64,
+    pub lotz_constants: Option<LotzConstants>,
+    pub processes: Processes,
+    /// Escape rate per charge state (s⁻¹), charge 0…Z; empty for none.
+    pub loss_per_s: Vec<f64>,
+    /// Continuous injection (charge, particles per s in units of the initial population).
+    pub feed: Option<(u32, f64)>,
+}
+
+impl BeamTrap {
+    /// A trap with the default gas temperature (300 K), compensation 0.5 and all processes.
+    pub fn new(
+        beam: ElectronBeam,
+        length_m: f64,
+        residual_gas: &[(String, f64)],
+        ion_temperature_ev: f64,
+    ) -> Result<Self> {
+        require_positive("length_m", length_m)?;
+        require_positive("ion_temperature_ev", ion_temperature_ev)?;
+        let residual_gas = residual_gas
+            .iter()
+            .map(|(name, p)| {
+                require_non_negative(&format!("residual_gas_pa[{name:?}]"), *p)?;
+                Ok(GasComponent {
+                    gas: gas(name)?,
+                    pressure_pa: *p,
+                })
+            })
+            .collect::<Result<Vec<_>>>()?;
+        Ok(BeamTrap {
+            beam,
+            length_m,
+            residual_gas,
+            ion_temperature_ev,
+            gas_temperature_k: 300.0,
+            compensation: 0.5,
+            lotz_constants: None,
+            processes: Processes::default(),
+            loss_per_s: Vec::new(),
+            feed: None,
+        })
+    }
+
+    /// The same trap with another beam energy (current density unchanged).
+    pub fn with_energy(&self, energy_ev: f64) -> Result<Self> {
+        require_positive("energy_ev", energy_ev)?;
+        let mut t = self.clone();
+        t.beam.energy_ev = energy_ev;
+        Ok(t)
+    }
+
+    /// Check the optional settings against an element.
+    fn check(&self, element: &Element) -> Result<()> {
+        require_positive("gas_temperature_k", self.gas_temperature_k)?;
+        if !(0.0..=1.0).contains(&self.compensation) {
+            return Err(Error::invalid("compensation", self.compensation, "must lie in 0..=1"));
+        }
+        let n = element.z() as usize + 1;
+        if !self.loss_per_s.is_empty() && self.loss_per_s.len() != n {
+            return Err(Error::invalid(
+                "loss_per_s",
+                format!("{} values", self.loss_per_s.len()),
+                &format!("give one escape rate per charge state 0..={} ({n} values)", element.z()),
+            ));
+        }
+        if let Some((q, rate)) = self.feed {
+            element.check_charge(q as i64, element.z())?;
+            require_non_negative("feed_per_s", rate)?;
+        }
+        Ok(())
+    }
+
+    /// Radiative-recombination rate of charge q → q−1 (s⁻¹): (j/e)·σ_RR (Kim & Pratt 1983).
+    pub fn recombination_rate_per_s(&self, element: &'static Element, charge: u32) -> Result<f64> {
+        let ion = element.ion(charge as i64)?;
+        let (n0, occupancy) = ion.valence_shell();
+        let sigma = kim_pratt_cross_section_cm2(element.z(), charge, n0, occupancy, self.beam.energy_ev);
+        Ok(self.beam.electron_flux_per_cm2_s() * sigma)
+    }
+
+    /// Charge-exchange rate of charge q → q−1 (s⁻¹) on the residual gas:
+    /// Σ_gas n_gas σ_CX v̄_ion (Müller & Salzborn 1977). Channels whose capture would be
+    /// endothermic (the ion's recombined state binds the electron less than the target does)
+    /// are closed.
+    pub fn charge_exchange_rate_per_s(&self, element: &'static Element, charge: u32) -> f64 {
+        if charge == 0 {
+            return 0.0;
+        }
+        let mass_kg = element.atomic_weight_u() * ATOMIC_MASS_UNIT_KG;
+        let speed_m_s = (8.0 * self.ion_temperature_ev * ELEMENTARY_CHARGE_C / (std::f64::consts::PI * mass_kg)).sqrt();
+        let recombined_binding_ev = element.ionization_energies_ev().get(charge as usize - 1).copied().unwrap_or(0.0);
+        self.residual_gas
+            .iter()
+            .filter(|g| recombined_binding_ev > g.gas.ionization_energy_ev)
+            .map(|g| {
+                let n_cm3 = gas_number_density_m3(g.pressure_pa, self.gas_temperature_k) * 1e-6;
+                n_cm3 * muller_salzborn_cross_section_cm2(charge, g.gas.ionization_energy_ev) * speed_m_s * 100.0
+            })
+            .sum()
+    }
+
+    /// The rate network of `element` in this trap: states 0…Z.
+    pub fn network(&self, element: &'static Element) -> Result<RateNetwork> {
+        self.check(element)?;
+        if !element.is_complete() {
+            return Err(Error::NoData {
+                what: format!("charge-state network of {}", element.symbol()),
+                why: "the ionization-energy chain is incomplete above Z = 103".into(),
+            });
+        }
+        let z = element.z();
+        let mut net = RateNetwork::new(z as usize + 1)?;
+        let flux = self.beam.electron_flux_per_cm2_s();
+        for q in 0..z {
+            if self.processes.ionization {
+                let sigma = ionization_cross_sections_cm2(element, q as i64, &[self.beam.energy_ev], self.lotz_constants)?[0];
+                net.add_rate(q as usize, q as usize + 1, flux * sigma)?;
+            }
+        }
+        for q in 1..=z {
+            let mut down = 0.0;
+            if self.processes.radiative_recombination {
+                down += self.recombination_rate_per_s(element, q)?;
+            }
+            if self.processes.charge_exchange {
+                down += self.charge_exchange_rate_per_s(element, q);
+            }
+            net.add_rate(q as usize, q as usize - 1, down)?;
+        }
+        for (q, loss) in self.loss_per_s.iter().enumerate() {
+            net.set_loss(q, *loss)?;
+        }
+        if let Some((q, rate)) = self.feed {
+            net.set_feed(q as usize, rate)?;
+        }
+        Ok(net)
+    }
+
+    /// Charge-state populations at each time (rows) for atoms starting as `initial_charge`.
+    pub fn evolve(&self, element: &'static Element, times_s: &[f64], initial_charge: u32) -> Result<ndarray::Array2<f64>> {
+        element.check_charge(initial_charge as i64, element.z())?;
+        let net = self.network(element)?;
+        let mut initial = vec![0.0; net.n_states()];
+        initial[initial_charge as usize] = 1.0;
+        evolve(&net, &initial, times_s)
+    }
+
+    /// Equilibrium charge-state populations.
+    pub fn steady_state(&self, element: &'static Element) -> Result<Vec<f64>> {
+        steady_state(&self.network(element)?)
+    }
+
+    /// Electrons inside the trap, N_e = I L/(e v).
+    pub fn electrons_in_trap(&self) -> f64 {
+        electrons_in_trap(self.beam.current_a, self.beam.energy_ev, self.length_m)
+    }
+
+    /// Ions of each charge state per extraction for charge-state fractions `fractions`:
+    ///
+    ///   N_q = f · N_e · F_q / Σ_{q'≥1} q' F_q',
+    ///
+    /// the trap filled with ions until their charge compensates the fraction f of the
+    /// electron space charge, shared as the fractions say (neutrals are not trapped).
+    pub fn ions_per_extraction(&self, fractions: &[f64]) -> Result<Vec<f64>> {
+        if !(0.0..=1.0).contains(&self.compensation) {
+            return Err(Error::invalid("compensation", self.compensation, "must lie in 0..=1"));
+        }
+        let charge_sum: f64 = fractions.iter().enumerate().map(|(q, f)| q as f64 * f).sum();
+        let capacity = self.compensation * self.electrons_in_trap();
+        Ok(fractions
+            .iter()
+            .enumerate()
+            .map(|(q, f)| if q == 0 || charge_sum <= 0.0 { 0.0 } else { capacity * f / charge_sum })
+            .collect())
+    }
+
+    /// The fraction of the target charge states over an energy × time grid, in parallel.
+    pub fn energy_time_map(
+        &self,
+        element: &'static Element,
+        targets: &[u32],
+        energies_ev: &[f64],
+        times_s: &[f64],
+    ) -> Result<EnergyTimeMap> {
+        require_all_positive("energies_ev", energies_ev)?;
+        if energies_ev.is_empty() || times_s.is_empty() {
+            return Err(Error::invalid("grid", "empty", "give at least one energy and one time"));
+        }
+        if targets.is_empty() {
+            return Err(Error::invalid("charge", "none", "give at least one target charge state"));
+        }
+        for q in targets {
+            element.check_charge(*q as i64, element.z())?;
+        }
+        let rows: Vec<Vec<f64>> = energies_ev
+            .par_iter()
+            .map(|e| {
+                let pops = self.with_energy(*e)?.evolve(element, times_s, 0)?;
+                Ok(pops
+                    .rows()
+                    .into_iter()
+                    .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
+                    .collect())
+            })
+            .collect::<Result<_>>()?;
+        let mut best = (0, 0, f64::NEG_INFINITY);
+        for (i, row) in rows.iter().enumerate() {
+            for (k, v) in row.iter().enumerate() {
+                if *v > best.2 {
+                    best = (i, k, *v);
+                }
+            }
+        }
+        Ok(EnergyTimeMap {
+            energies_ev: energies_ev.to_vec(),
+            times_s: times_s.to_vec(),
+            fraction: rows,
+            best_energy_ev: energies_ev[best.0],
+            best_time_s: times_s[best.1],
+            best_fraction: best.2,
+        })
+    }
+}
+
+/// Target fraction over an energy × time grid, and where it is largest.
+#[derive(Clone, Debug)]
+pub struct EnergyTimeMap {
+    pub energies_ev: Vec<f64>,
+    pub times_s: Vec<f64>,
+    /// fraction[energy][time].
+    pub fraction: Vec<Vec<f64>>,
+    pub best_energy_ev: f64,
+    pub best_time_s: f64,
+    pub best_fraction: f64,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::atoms::element;
+
+    fn trap(energy_ev: f64) -> BeamTrap {
+        let beam = ElectronBeam::with_radius(energy_ev, 0.2, 60e-6).unwrap();
+        BeamTrap::new(beam, 0.5, &[("H2".into(), 1e-8), ("N2".into(), 2e-9)], 100.0).unwrap()
+    }
+
+    #[test]
+    fn network_has_ionization_up_and_recombination_down() {
+        let ar = element("Ar").unwrap();
+        let net = trap(5000.0).network(ar).unwrap();
+        assert_eq!(net.n_states(), 19);
+        assert!(net.rate(0, 1) > net.rate(10, 11));
+        assert!(net.rate(18, 17) > 0.0);
+        // 5 keV cannot ionize Ar17+ (IE 4426 eV, NIST ASD) at a rate comparable to lower steps,
+        // but it is above threshold, so the rate is positive.
+        assert!(net.rate(17, 18) > 0.0);
+    }
+
+    #[test]
+    fn charge_exchange_needs_an_exothermic_channel() {
+        let ar = element("Ar").unwrap();
+        let t = trap(5000.0);
+        // Ar+ recombined to Ar binds by 15.76 eV (NIST ASD) > H2 15.43 eV: open;
+        // an N2-only trap: 15.76 > 15.58: open as well; neutral Ar: nothing.
+        assert!(t.charge_exchange_rate_per_s(ar, 1) > 0.0);
+        assert_eq!(t.charge_exchange_rate_per_s(ar, 0), 0.0);
+        let he = element("He").unwrap();
+        assert!(t.charge_exchange_rate_per_s(he, 2) > 0.0);
+    }
+
+    #[test]
+    fn ions_per_extraction_share_the_compensated_charge() {
+        let t = trap(5000.0);
+        let fr = [0.0, 0.0, 0.5, 0.5];
+        let n = t.ions_per_extraction(&fr).unwrap();
+        let total_charge: f64 = n.iter().enumerate().map(|(q, v)| q as f64 * v).sum();
+        assert!((total_charge / (0.5 * t.electrons_in_trap()) - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn wrong_loss_length_is_rejected() {
+        let ar = element("Ar").unwrap();
+        let mut t = trap(5000.0);
+        t.loss_per_s = vec![1.0; 3];
+        assert!(matches!(t.network(ar), Err(Error::InvalidParameter { .. })));
+    }
+}

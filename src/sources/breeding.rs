@@ -1,0 +1,125 @@
+//! Stepwise breeding in an electron beam with ionization alone (physics.md §4).
+//!
+//! The rate of q → q+1 is λ_q = (j/e)·σ_q(E); the populations then follow the Bateman
+//! chain, and the time to reach q is τ_q = Σ_{i<q} 1/λ_i, i.e. the ionization factor
+//! jτ_q = e·Σ_{i<q} 1/σ_i (C/cm²), independent of the current density.
+
+use crate::atoms::Element;
+use crate::constants::ELEMENTARY_CHARGE_C;
+use crate::error::{require_positive, Result};
+use crate::processes::electron_impact::{ionization_cross_sections_cm2, peak_energy_ev};
+use crate::processes::lotz::LotzConstants;
+
+/// One step q → q+1 of the breeding ladder.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BreedingStep {
+    pub charge: u32,
+    pub ionization_energy_ev: f64,
+    /// Lotz cross section of the step at the beam energy (0 when the energy is below threshold).
+    pub cross_section_cm2: f64,
+    pub rate_per_s: f64,
+    /// Cumulative time to reach charge + 1 from the neutral (s; infinite when unreachable).
+    pub time_to_next_s: f64,
+    /// Cumulative ionization factor jτ to reach charge + 1 (C/cm²).
+    pub j_tau_c_cm2: f64,
+    /// Electron energy that maximises this step's cross section (eV).
+    pub peak_energy_ev: f64,
+}
+
+/// The ladder of steps 0 → 1 → … → `target_charge` at one beam energy and current density.
+pub fn breeding_ladder(
+    element: &'static Element,
+    target_charge: i64,
+    energy_ev: f64,
+    current_density_a_cm2: f64,
+    constants: Option<LotzConstants>,
+) -> Result<Vec<BreedingStep>> {
+    require_positive("energy_ev", energy_ev)?;
+    require_positive("current_density_a_cm2", current_density_a_cm2)?;
+    element.check_charge(target_charge, element.z())?;
+    let flux = current_density_a_cm2 / ELEMENTARY_CHARGE_C;
+    let mut j_tau = 0.0;
+    let mut steps = Vec::with_capacity(target_charge as usize);
+    for q in 0..target_charge {
+        let sigma = ionization_cross_sections_cm2(element, q, &[energy_ev], constants)?[0];
+        j_tau += if sigma > 0.0 {
+            ELEMENTARY_CHARGE_C / sigma
+        } else {
+            f64::INFINITY
+        };
+        steps.push(BreedingStep {
+            charge: q as u32,
+            ionization_energy_ev: element.ionization_energies_ev()[q as usize],
+            cross_section_cm2: sigma,
+            rate_per_s: flux * sigma,
+            time_to_next_s: j_tau / current_density_a_cm2,
+            j_tau_c_cm2: j_tau,
+            peak_energy_ev: peak_energy_ev(element, q, constants)?,
+        });
+    }
+    Ok(steps)
+}
+
+/// Ionization factor jτ (C/cm²) to reach `charge` from the neutral; infinite when the beam
+/// energy lies below one of the steps' thresholds.
+pub fn j_tau_c_cm2(
+    element: &'static Element,
+    charge: i64,
+    energy_ev: f64,
+    constants: Option<LotzConstants>,
+) -> Result<f64> {
+    Ok(breeding_ladder(element, charge, energy_ev, 1.0, constants)?
+        .last()
+        .map_or(0.0, |s| s.j_tau_c_cm2))
+}
+
+/// Time (s) to reach `charge` from the neutral at a current density (A/cm²).
+pub fn breeding_time_s(
+    element: &'static Element,
+    charge: i64,
+    energy_ev: f64,
+    current_density_a_cm2: f64,
+    constants: Option<LotzConstants>,
+) -> Result<f64> {
+    require_positive("current_density_a_cm2", current_density_a_cm2)?;
+    Ok(j_tau_c_cm2(element, charge, energy_ev, constants)? / current_density_a_cm2)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::atoms::element;
+
+    #[test]
+    fn last_argon_steps_match_the_planning_values() {
+        // physics.md §4 (computed while planning, simplified Lotz, E = 10 keV):
+        // Ar16+ → Ar17+ needs e/σ ≈ 83 C/cm², Ar17+ → Ar18+ ≈ 193 C/cm².
+        let ar = element("Ar").unwrap();
+        let ladder = breeding_ladder(ar, 18, 1e4, 100.0, None).unwrap();
+        let step = |q: usize| {
+            ladder[q].j_tau_c_cm2
+                - if q > 0 {
+                    ladder[q - 1].j_tau_c_cm2
+                } else {
+                    0.0
+                }
+        };
+        assert!((step(16) - 83.0).abs() < 2.0, "{}", step(16));
+        assert!((step(17) - 193.0).abs() < 3.0, "{}", step(17));
+    }
+
+    #[test]
+    fn time_scales_inversely_with_current_density() {
+        let kr = element("Kr").unwrap();
+        let t1 = breeding_time_s(kr, 20, 5000.0, 100.0, None).unwrap();
+        let t2 = breeding_time_s(kr, 20, 5000.0, 400.0, None).unwrap();
+        assert!((t1 / t2 - 4.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn below_threshold_is_unreachable() {
+        let ar = element("Ar").unwrap();
+        // 1 keV cannot remove a 1s electron (IE of Ar16+ is 4.1 keV, NIST ASD).
+        assert!(j_tau_c_cm2(ar, 17, 1000.0, None).unwrap().is_infinite());
+    }
+}

@@ -1,0 +1,6 @@
+//! Sources: turn a source description (electron-beam trap, photon beam, single-collision
+//! electron source) into per-charge rates and rate networks.
+
+pub mod beam_trap;
+pub mod breeding;
+pub mod electron_beam;
