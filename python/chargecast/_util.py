@@ -45,6 +45,8 @@ def as_int(name: str, value: Any) -> int:
     """A whole number (charge states and the like)."""
     if isinstance(value, bool) or not isinstance(value, (int, np.integer)):
         raise InvalidParameterError(f"invalid {name} = {value!r}: must be a whole number")
+    if not -(2**62) <= int(value) <= 2**62:
+        raise InvalidParameterError(f"invalid {name} = {value!r}: far outside any allowed range")
     return int(value)
 
 

@@ -5,6 +5,7 @@ use numpy::{PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
+use super::convert::int_arg;
 use super::{element_arg, guard, to_py, vec_arg};
 use crate::atoms::{Element, Ion};
 use crate::processes::electron_impact::{
@@ -53,13 +54,13 @@ impl PyElement {
     fn is_complete(&self) -> bool {
         self.inner.is_complete()
     }
-    fn ion(&self, charge: i64) -> PyResult<PyIon> {
+    fn ion(&self, charge: &Bound<'_, PyAny>) -> PyResult<PyIon> {
         Ok(PyIon {
-            inner: self.inner.ion(charge)?,
+            inner: self.inner.ion(int_arg("charge", charge)?)?,
         })
     }
-    fn configuration(&self, charge: i64) -> PyResult<String> {
-        Ok(self.inner.ion(charge)?.configuration().label())
+    fn configuration(&self, charge: &Bound<'_, PyAny>) -> PyResult<String> {
+        Ok(self.inner.ion(int_arg("charge", charge)?)?.configuration().label())
     }
     /// (mass_number, mass_u, abundance or None) of every isotope with a measured mass.
     fn isotopes(&self) -> Vec<(u32, f64, Option<f64>)> {

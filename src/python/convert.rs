@@ -59,3 +59,34 @@ pub(crate) fn matrix_to_py<'py>(py: Python<'py>, a: ndarray::Array2<f64>) -> Bou
 pub(crate) fn vec_arg(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
     a.as_array().iter().copied().collect()
 }
+
+/// A whole number from Python (bool and non-integers rejected with a clear message).
+pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<i64> {
+    if value.is_instance_of::<PyBool>() || !value.is_instance_of::<PyInt>() {
+        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        return Err(Error::invalid(name, shown, "must be a whole number (int)"));
+    }
+    value
+        .extract::<i64>()
+        .map_err(|_| Error::invalid(name, value, "must fit in a 64-bit integer"))
+}
+
+/// A real number from Python (int or float; bool, str and others rejected clearly).
+pub(crate) fn float_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<f64> {
+    if value.is_instance_of::<PyBool>() || value.is_instance_of::<PyString>() {
+        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        return Err(Error::invalid(name, shown, "must be a number"));
+    }
+    value.extract::<f64>().map_err(|_| {
+        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        Error::invalid(name, shown, "must be a number")
+    })
+}
+
+/// An optional real number (None stays None).
+pub(crate) fn opt_float_arg(name: &str, value: Option<&Bound<'_, PyAny>>) -> Result<Option<f64>> {
+    match value {
+        Some(v) if !v.is_none() => float_arg(name, v).map(Some),
+        _ => Ok(None),
+    }
+}

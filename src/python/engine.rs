@@ -5,7 +5,7 @@ use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use rayon::prelude::*;
 
-use super::convert::matrix_to_py;
+use super::convert::{float_arg, matrix_to_py, opt_float_arg};
 use super::{element_arg, guard, to_py, vec_arg};
 use crate::atoms::Element;
 use crate::error::{Error, Result};
@@ -28,18 +28,26 @@ pub(crate) struct PyElectronBeam {
 impl PyElectronBeam {
     #[new]
     #[pyo3(signature = (energy_ev, current_a, *, radius_m=None, current_density_a_cm2=None, magnetic_field_t=None,
-                        cathode_radius_m=None, cathode_temperature_k=None, cathode_field_t=0.0))]
+                        cathode_radius_m=None, cathode_temperature_k=None, cathode_field_t=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
-        energy_ev: f64,
-        current_a: f64,
-        radius_m: Option<f64>,
-        current_density_a_cm2: Option<f64>,
-        magnetic_field_t: Option<f64>,
-        cathode_radius_m: Option<f64>,
-        cathode_temperature_k: Option<f64>,
-        cathode_field_t: f64,
+        energy_ev: &Bound<'_, PyAny>,
+        current_a: &Bound<'_, PyAny>,
+        radius_m: Option<&Bound<'_, PyAny>>,
+        current_density_a_cm2: Option<&Bound<'_, PyAny>>,
+        magnetic_field_t: Option<&Bound<'_, PyAny>>,
+        cathode_radius_m: Option<&Bound<'_, PyAny>>,
+        cathode_temperature_k: Option<&Bound<'_, PyAny>>,
+        cathode_field_t: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let energy_ev = float_arg("energy_ev", energy_ev)?;
+        let current_a = float_arg("current_a", current_a)?;
+        let radius_m = opt_float_arg("radius_m", radius_m)?;
+        let current_density_a_cm2 = opt_float_arg("current_density_a_cm2", current_density_a_cm2)?;
+        let magnetic_field_t = opt_float_arg("magnetic_field_t", magnetic_field_t)?;
+        let cathode_radius_m = opt_float_arg("cathode_radius_m", cathode_radius_m)?;
+        let cathode_temperature_k = opt_float_arg("cathode_temperature_k", cathode_temperature_k)?;
+        let cathode_field_t = opt_float_arg("cathode_field_t", cathode_field_t)?.unwrap_or(0.0);
         let given = [radius_m.is_some(), current_density_a_cm2.is_some(), magnetic_field_t.is_some()];
         if given.iter().filter(|g| **g).count() != 1 {
             return Err(Error::invalid(
@@ -93,7 +101,8 @@ impl PyElectronBeam {
         self.inner.electron_flux_per_cm2_s()
     }
     /// Space-charge potential depression axis-to-wall (V) in a drift tube of radius (m).
-    fn space_charge_depression_v(&self, drift_tube_radius_m: f64) -> PyResult<f64> {
+    fn space_charge_depression_v(&self, drift_tube_radius_m: &Bound<'_, PyAny>) -> PyResult<f64> {
+        let drift_tube_radius_m = float_arg("drift_tube_radius_m", drift_tube_radius_m)?;
         crate::error::require_positive("drift_tube_radius_m", drift_tube_radius_m)?;
         if drift_tube_radius_m < self.inner.radius_m {
             return Err(Error::invalid("drift_tube_radius_m", drift_tube_radius_m, "must be >= the beam radius").into());

@@ -32,7 +32,7 @@ fn rebuild(columns: Columns) -> Result<LineList> {
     let lines = (0..n)
         .map(|i| Line::new(z[i], a[i], q[i], intensity[i], residual[i]))
         .collect::<Result<Vec<_>>>()?;
-    Ok(LineList::new(lines))
+    LineList::new(lines)
 }
 
 fn set_line_columns<'py>(d: &Bound<'py, PyDict>, prefix: &str, lines: &[&Line]) -> PyResult<()> {

@@ -1,0 +1,275 @@
+//! Line lists: every (isotope, charge) of the ions in a source with its m/q, A/q and relative
+//! intensity, sorted along the m/q axis.
+
+use std::cmp::Ordering;
+use std::collections::HashMap;
+
+use super::masses::ion_mass_u;
+use super::species::{isotope_label, parse_species};
+use crate::atoms::{element_by_z, Isotope};
+use crate::error::{require_non_negative, Error, Result};
+
+/// One species of a source: what it is, how much of it there is, and its charge-state
+/// fractions (index = charge 0 … Z; the neutral never makes a line).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpeciesInput {
+    /// Element ("Kr", natural isotopic mix) or isotope ("84Kr", "Kr-84").
+    pub spec: String,
+    /// Relative amount (any unit shared by all species), ≥ 0.
+    pub amount: f64,
+    /// Charge-state fractions, length Z + 1, each ≥ 0.
+    pub fractions: Vec<f64>,
+    /// True for residual-gas species (only used to mark their lines).
+    pub residual: bool,
+}
+
+/// One ion on the m/q axis.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Line {
+    pub z: u32,
+    pub mass_number: u32,
+    pub charge: u32,
+    /// Ion mass (u).
+    pub mass_u: f64,
+    /// m/q (u/e).
+    pub m_over_q: f64,
+    /// A/q (mass number over charge).
+    pub a_over_q: f64,
+    /// amount × isotopic share × charge-state fraction.
+    pub intensity: f64,
+    /// True when every contribution to this line came from residual gas.
+    pub residual: bool,
+}
+
+impl Line {
+    /// The line of isotope (z, mass_number) at `charge` ≥ 1 with `intensity` ≥ 0.
+    pub fn new(
+        z: i64,
+        mass_number: i64,
+        charge: i64,
+        intensity: f64,
+        residual: bool,
+    ) -> Result<Self> {
+        let el = element_by_z(z)?;
+        let a = u32::try_from(mass_number).map_err(|_| {
+            Error::invalid("mass_number", mass_number, "must be a known mass number")
+        })?;
+        let iso = el.isotope(a)?;
+        Line::of(iso, charge, intensity, residual)
+    }
+
+    fn of(iso: &Isotope, charge: i64, intensity: f64, residual: bool) -> Result<Self> {
+        require_non_negative("intensity", intensity)?;
+        if charge == 0 {
+            return Err(Error::invalid(
+                "charge",
+                0,
+                "a line needs a charge of 1 or more",
+            ));
+        }
+        let mass_u = ion_mass_u(iso, charge)?;
+        let q = charge as f64;
+        Ok(Line {
+            z: iso.z,
+            mass_number: iso.mass_number,
+            charge: charge as u32,
+            mass_u,
+            m_over_q: mass_u / q,
+            a_over_q: iso.mass_number as f64 / q,
+            intensity,
+            residual,
+        })
+    }
+
+    /// "84Kr".
+    pub fn isotope_label(&self) -> String {
+        let symbol = element_by_z(self.z as i64).map_or("?", |e| e.symbol());
+        format!("{}{}", self.mass_number, symbol)
+    }
+
+    /// "84Kr26+".
+    pub fn label(&self) -> String {
+        format!("{}{}+", self.isotope_label(), self.charge)
+    }
+
+    pub(crate) fn is(&self, z: u32, mass_number: u32, charge: u32) -> bool {
+        self.z == z && self.mass_number == mass_number && self.charge == charge
+    }
+}
+
+/// Lines sorted by m/q; each (isotope, charge) appears once.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct LineList {
+    lines: Vec<Line>,
+}
+
+impl LineList {
+    /// Sort, and merge lines of the same isotope and charge (their intensities add). The
+    /// total intensity must stay finite.
+    pub fn new(lines: Vec<Line>) -> Result<Self> {
+        let total: f64 = lines.iter().map(|l| l.intensity).sum();
+        if !total.is_finite() {
+            return Err(Error::invalid(
+                "intensity",
+                total,
+                "the summed intensity of all lines must be finite (scale amounts and fractions down)",
+            ));
+        }
+        let mut index: HashMap<(u32, u32, u32), usize> = HashMap::with_capacity(lines.len());
+        let mut merged: Vec<Line> = Vec::with_capacity(lines.len());
+        for line in lines {
+            let key = (line.z, line.mass_number, line.charge);
+            match index.get(&key).and_then(|&i| merged.get_mut(i)) {
+                Some(m) => {
+                    m.intensity += line.intensity;
+                    m.residual &= line.residual;
+                }
+                None => {
+                    index.insert(key, merged.len());
+                    merged.push(line);
+                }
+            }
+        }
+        merged.sort_by(|a, b| {
+            a.m_over_q
+                .partial_cmp(&b.m_over_q)
+                .unwrap_or(Ordering::Equal)
+                .then(a.z.cmp(&b.z))
+                .then(a.mass_number.cmp(&b.mass_number))
+                .then(a.charge.cmp(&b.charge))
+        });
+        Ok(LineList { lines: merged })
+    }
+
+    pub fn lines(&self) -> &[Line] {
+        &self.lines
+    }
+
+    pub fn len(&self) -> usize {
+        self.lines.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.lines.is_empty()
+    }
+
+    /// The line of isotope (z, mass_number) at `charge`, if present.
+    pub fn find(&self, z: u32, mass_number: u32, charge: u32) -> Option<&Line> {
+        self.lines.iter().find(|l| l.is(z, mass_number, charge))
+    }
+}
+
+/// The line list of a source: one line per isotope and charge ≥ 1 with a non-zero intensity
+/// = amount × isotopic share (natural abundance, or 1 for a named isotope) × fraction.
+pub fn aq_lines(species: &[SpeciesInput]) -> Result<LineList> {
+    let mut lines = Vec::new();
+    for s in species {
+        let parsed = parse_species(&s.spec)?;
+        let el = parsed.element();
+        require_non_negative(&format!("amount of {}", s.spec), s.amount)?;
+        let expected = el.z() as usize + 1;
+        if s.fractions.len() != expected {
+            return Err(Error::invalid(
+                &format!("fractions of {}", s.spec),
+                format!("{} values", s.fractions.len()),
+                &format!(
+                    "give one fraction per charge 0..={} of {} ({expected} values)",
+                    el.z(),
+                    el.symbol()
+                ),
+            ));
+        }
+        for f in &s.fractions {
+            require_non_negative(&format!("fractions of {}", s.spec), *f)?;
+        }
+        let isotopes = parsed.isotopes();
+        if isotopes.is_empty() {
+            let example = el
+                .isotopes()
+                .first()
+                .map_or_else(String::new, isotope_label);
+            return Err(Error::NoData {
+                what: format!("natural isotopes of {}", el.symbol()),
+                why: format!(
+                    "{} has none; name an isotope, e.g. \"{example}\"",
+                    el.symbol()
+                ),
+            });
+        }
+        for (iso, share) in isotopes {
+            for (q, f) in s.fractions.iter().enumerate().skip(1) {
+                let intensity = s.amount * share * f;
+                if intensity > 0.0 {
+                    lines.push(Line::of(iso, q as i64, intensity, s.residual)?);
+                }
+            }
+        }
+    }
+    LineList::new(lines)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn input(spec: &str, amount: f64, fractions: Vec<f64>) -> SpeciesInput {
+        SpeciesInput {
+            spec: spec.into(),
+            amount,
+            fractions,
+            residual: false,
+        }
+    }
+
+    #[test]
+    fn natural_mix_splits_by_abundance_and_skips_the_neutral() {
+        // Neon: 20, 21, 22 occur naturally; only charges with a non-zero fraction make lines.
+        let mut f = vec![0.0; 11];
+        f[0] = 0.5;
+        f[2] = 0.5;
+        let list = aq_lines(&[input("Ne", 2.0, f)]).unwrap();
+        assert_eq!(list.len(), 3);
+        let total: f64 = list.lines().iter().map(|l| l.intensity).sum();
+        assert!((total - 1.0).abs() < 1e-6, "{total}");
+        assert!(list.lines().iter().all(|l| l.charge == 2));
+        assert!(list
+            .lines()
+            .windows(2)
+            .all(|w| w[0].m_over_q <= w[1].m_over_q));
+    }
+
+    #[test]
+    fn the_same_ion_from_two_species_is_one_line() {
+        let mut f = vec![0.0; 19];
+        f[1] = 1.0;
+        let mut residual = input("Ar", 1.0, f.clone());
+        residual.residual = true;
+        let list = aq_lines(&[input("40Ar", 1.0, f), residual]).unwrap();
+        let ar40 = list.find(18, 40, 1).unwrap();
+        assert!(ar40.intensity > 1.99 && ar40.intensity < 2.0);
+        assert!(!ar40.residual);
+        assert!(list.find(18, 36, 1).unwrap().residual);
+        assert_eq!(ar40.label(), "40Ar1+");
+    }
+
+    #[test]
+    fn bad_inputs_are_errors() {
+        assert!(aq_lines(&[input("Ne", 1.0, vec![0.0; 10])]).is_err());
+        assert!(aq_lines(&[input("Ne", -1.0, vec![0.0; 11])]).is_err());
+        let mut f = vec![0.0; 11];
+        f[3] = f64::NAN;
+        assert!(aq_lines(&[input("Ne", 1.0, f)]).is_err());
+        assert!(aq_lines(&[input("Tc", 1.0, vec![0.0; 44])]).is_err());
+        assert!(aq_lines(&[input("99Tc", 1.0, vec![0.0; 44])])
+            .unwrap()
+            .is_empty());
+        // Each line finite, their sum not.
+        let one = vec![0.0, 1.0];
+        let err =
+            aq_lines(&[input("1H", 1.5e308, one.clone()), input("H", 1.5e308, one)]).unwrap_err();
+        assert!(err.to_string().contains("summed intensity"), "{err}");
+        assert!(Line::new(36, 84, 0, 1.0, false).is_err());
+        assert!(Line::new(36, -84, 1, 1.0, false).is_err());
+        assert!(Line::new(36, 84, 37, 1.0, false).is_err());
+    }
+}
