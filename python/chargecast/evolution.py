@@ -10,6 +10,9 @@ import numpy as np
 from chargecast._core import ChargeOutOfRangeError, InvalidParameterError
 from chargecast._util import PALETTE, as_float, require_pandas, require_pyplot
 
+# Yellow is hard to see as a thin line on white: curves use the rest of the palette.
+LINE_COLORS = [c for c in PALETTE if c != "#F0E442"]
+
 
 class Evolution:
     """Charge-state fractions of one element over confinement time.
@@ -148,7 +151,8 @@ class Evolution:
         for k, q in enumerate(qs):
             q = self._check_charge(q)
             t, f = self.times_s[positive], self.fractions[positive, q]
-            ax.plot(t, f, styles[(k // len(PALETTE)) % 4], color=PALETTE[k % len(PALETTE)], label=f"{q}+")
+            ax.plot(t, f, styles[(k // len(LINE_COLORS)) % 4], color=LINE_COLORS[k % len(LINE_COLORS)],
+                    label=f"{q}+")
             i = int(np.argmax(f))
             if f[i] > 0.05:
                 ax.annotate(f"{q}+", (t[i], f[i]), textcoords="offset points", xytext=(0, 3), ha="center", fontsize=7)

@@ -1,0 +1,240 @@
+"""Scenario files: the schema, its error messages and the report computed from a scenario."""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import chargecast as cc
+import numpy as np
+import pytest
+from chargecast.scenario import Scenario
+
+GOOD = """\
+title = "argon test"
+[target]
+isotope = "40Ar"
+charge = 16
+
+[trap]
+energy_ev = 6000.0
+current_a = 0.1
+current_density_a_cm2 = 300.0
+length_m = 0.4
+
+[residual_gas_pa]
+H2 = 1e-8
+
+[time]
+start_s = 1e-4
+stop_s = 5.0
+points = 120
+
+[energy_scan]
+points = 12
+
+[separator]
+resolving_power = 300.0
+"""
+
+
+def error_of(text: str, filename: str = "run.toml") -> str:
+    with pytest.raises(cc.ScenarioError) as info:
+        Scenario.from_text(text, filename)
+    return str(info.value)
+
+
+def line_of(text: str, whole_line: str) -> int:
+    return next(i for i, ln in enumerate(text.splitlines(), start=1) if ln.strip() == whole_line)
+
+
+def test_good_scenario_fills_defaults() -> None:
+    s = Scenario.from_text(GOOD, "run.toml")
+    assert s.target == {"isotope": "40Ar", "symbol": "Ar", "z": 18, "mass_number": 40, "charge": 16}
+    assert [sp["name"] for sp in s.species] == ["40Ar"]
+    assert s.source["kind"] == "trap" and s.source["compensation"] == 0.5
+    assert s.separator["peak_shape"] == "gaussian"
+    assert (
+        s.times_s[0] == pytest.approx(1e-4) and s.times_s[-1] == pytest.approx(5.0) and len(s.times_s) == 120
+    )
+    assert s.residual_elements == {"H": 1.0}
+    assert s.lines["trap.energy_ev"] == line_of(GOOD, "energy_ev = 6000.0")
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "field", "allowed"),
+    [
+        # an unknown field: the message lists the allowed ones
+        ("energy_ev = 6000.0", "energy_kev = 6.0", "trap.energy_kev", "energy_ev"),
+        # a wrong type
+        ("charge = 16", 'charge = "sixteen"', "target.charge", "whole number"),
+        ("length_m = 0.4", 'length_m = "long"', "trap.length_m", "number"),
+        # an unknown element in the target and in a gas
+        ('isotope = "40Ar"', 'isotope = "40Zz"', "target.isotope", "symbol"),
+        ("H2 = 1e-8", "SF6 = 1e-8", "residual_gas_pa.SF6", "H2"),
+        # values out of range
+        ("charge = 16", "charge = 19", "target.charge", "1..=18"),
+        ("current_a = 0.1", "current_a = -0.1", "trap.current_a", "> 0"),
+        ("points = 12", "points = 1", "energy_scan.points", "2..="),
+        (
+            "resolving_power = 300.0",
+            'resolving_power = 300.0\npeak_shape = "lorentzian"',
+            "separator.peak_shape",
+            "gaussian",
+        ),
+    ],
+)
+def test_errors_name_file_line_field_and_what_is_allowed(
+    old: str, new: str, field: str, allowed: str
+) -> None:
+    text = GOOD.replace(old, new)
+    msg = error_of(text, "my_run.toml")
+    line = line_of(text, new.splitlines()[-1])
+    assert msg.startswith("my_run.toml: "), msg
+    assert f"line {line}," in msg, msg
+    assert f"`{field}`" in msg, msg
+    assert allowed in msg, msg
+
+
+def test_unknown_species_element_is_reported_at_its_line() -> None:
+    text = GOOD + '\n[[species]]\nname = "Ar"\n\n[[species]]\nname = "Unobtainium"\n'
+    msg = error_of(text)
+    line = line_of(text, 'name = "Unobtainium"')
+    assert f"line {line}," in msg and "species[1].name" in msg, msg
+
+
+def test_structural_errors() -> None:
+    assert "exactly one of radius_m" in error_of(
+        GOOD.replace("length_m = 0.4", "length_m = 0.4\nradius_m = 1e-4")
+    )
+    assert "missing table [target]" in error_of(GOOD.replace('[target]\nisotope = "40Ar"\ncharge = 16\n', ""))
+    assert "exactly one of [trap]" in error_of(GOOD + "\n[single_collision]\nenergy_ev = 70.0\n")
+    assert "line 2" in error_of('[target]\nisotope = "40Ar\n')  # unterminated string
+    # the target isotope must come from some species
+    msg = error_of(GOOD + '\n[[species]]\nname = "Ne"\n')
+    assert "40Ar" in msg and "species" in msg
+    # an element alone is ambiguous for a target with several isotopes
+    assert "mass number" in error_of(GOOD.replace('"40Ar"', '"Ar"'))
+
+
+def test_missing_file_is_a_scenario_error(tmp_path: Path) -> None:
+    with pytest.raises(cc.ScenarioError, match="cannot read"):
+        cc.load_scenario(tmp_path / "nothing.toml")
+
+
+def test_bundled_scenarios_parse() -> None:
+    found = cc.bundled_scenarios()
+    assert {"demo", "reference"} <= set(found)
+    for path in found.values():
+        s = cc.load_scenario(path)
+        assert s.target["charge"] >= 1
+
+
+def test_reference_file_covers_every_documented_field() -> None:
+    doc = cc.scenario.__doc__ or ""
+    schema = doc[doc.index("Schema") : doc.index("Examples")]
+    fields = set(re.findall(r"``([a-z_0-9]+)``", schema))
+    fields -= {
+        "log",
+        "linear",
+        "gaussian",
+        "triangular",
+        "rectangular",
+        "ionization",
+        "radiative_recombination",
+        "charge_exchange",
+        "trap",
+        "photon_beam",
+        "single_collision",
+    }
+    text = cc.bundled_scenarios()["reference"].read_text(encoding="utf-8")
+    written = set(re.findall(r"^#?\s*([a-z_0-9]+)\s*=", text, flags=re.M))
+    assert fields, "no fields found in the schema documentation"
+    assert fields <= written, sorted(fields - written)
+
+
+@pytest.fixture(scope="module")
+def report() -> cc.Report:
+    return Scenario.from_text(GOOD, "run.toml").run()
+
+
+def test_report_parts_are_consistent(report: cc.Report) -> None:
+    q = 16
+    evo = report.target_evolution
+    # The extraction time defaults to the peak of the target on the grid.
+    t, f = evo.peak(q)
+    assert report.extraction_time_s == pytest.approx(t)
+    # Ions per extraction follow the trap's own formula for a single species.
+    trap = report.source
+    expected = trap.ions_per_extraction(evo.at(t))
+    np.testing.assert_allclose(report.ions["per_charge"], expected, rtol=1e-12)
+    # Best energy: the whole map's maximum, and never below the value at the scenario's energy
+    # (which is on the grid).
+    scan = report.scan
+    assert scan.best_fraction == pytest.approx(scan.fraction.max())
+    assert scan.best_fraction >= f - 1e-12
+    # Ladder rows are the breeding table of the beam.
+    lad = report.ladder
+    assert lad["charge"][q - 1] == q
+    ref = cc.breeding_time_s("Ar", q, energy_ev=6000.0, current_density_a_cm2=300.0)
+    assert lad["breeding_time_s"][q - 1] == pytest.approx(ref, rel=1e-12)
+    assert report.recommended is not None and report.ranking is not None
+
+
+def test_report_text_has_tables_units_and_cautions(report: cc.Report) -> None:
+    text = report.text()
+    for needle in (
+        "IE (eV)",
+        "σ Lotz (cm²)",
+        "breeding time (s)",
+        "jτ (C/cm²)",
+        "peak time (s)",
+        "Best electron energy",
+        "ions per extraction",
+        "A/q neighbourhood",
+        "Recommended charge state",
+        "radiation-safety officer",
+        "high voltage",
+    ):
+        assert needle in text, needle
+
+
+def test_report_json_is_strict_json(report: cc.Report) -> None:
+    d = json.loads(report.to_json())
+    assert d["target"] == "40Ar16+"
+    assert d["best_energy"]["best_energy_ev"] > 0
+    assert d["ions_per_extraction"]["target"] > 0
+    assert d["recommended_charge_state"]["charge"] >= 1
+    assert "radiation-safety" in d["cautions"]
+
+
+def test_report_html_and_figures(report: cc.Report, tmp_path: Path) -> None:
+    pytest.importorskip("matplotlib")
+    import matplotlib
+
+    matplotlib.use("Agg")
+    html = report._repr_html_()
+    assert "<pre>" in html and "data:image/png;base64" in html
+    files = report.save_plots(tmp_path)
+    assert [f.name for f in files] == [
+        "evolution.png",
+        "breeding_ladder.png",
+        "energy_time_map.png",
+        "aq_spectrum.png",
+    ]
+    for f in files:
+        assert f.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+@pytest.mark.parametrize(
+    ("name", "needs"), [("photon_beam", "PhotonBeam"), ("single_collision", "ElectronImpactSource")]
+)
+def test_other_source_kinds_run(name: str, needs: str) -> None:
+    if not hasattr(cc, needs):
+        pytest.skip(f"this build has no chargecast.{needs}")
+    report = cc.load_scenario(name).run()
+    d = json.loads(report.to_json())
+    assert d["target"] == report.scenario.target_label
+    assert d["aq_neighbourhood"] is not None and d["recommended_charge_state"] is not None
+    assert "Cautions" in report.text()
