@@ -72,3 +72,18 @@ fn neutral_bindings_are_edges_or_first_ionization_energy() {
     assert_eq!(ion.binding_ev(Subshell::new(3, 2)), Some(ie0)); // edge 2 eV < IE0
     assert_eq!(ion.binding_ev(Subshell::new(1, 0)), Some(7112.0)); // xraydb K edge (Elam 2002)
 }
+
+#[test]
+fn no_subshell_is_bound_less_than_the_ionization_energy() {
+    // IE_q is the least energy that removes any electron of ion q (definition).
+    for z in 1..=103 {
+        let e = element_by_z(z).unwrap();
+        for q in 0..z {
+            let ion = e.ion(q).unwrap();
+            let ie = ion.ionization_energy_ev().unwrap();
+            for s in ion.subshells() {
+                assert!(s.binding_ev >= ie, "{} {} {}: {} < {}", e.symbol(), q, s.subshell, s.binding_ev, ie);
+            }
+        }
+    }
+}

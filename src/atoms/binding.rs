@@ -9,7 +9,9 @@
 //!
 //! n_j the principal quantum number of the subshell ionized at step j: removing an
 //! electron of binding I from shell n raises the potential inside its orbit by about
-//! e²/⟨r⟩ = 2√(Ry·I)/n for a hydrogenic orbital.
+//! e²/⟨r⟩ = 2√(Ry·I)/n for a hydrogenic orbital. No subshell is bound less than IE_q, the
+//! least energy that removes any electron of ion q (the interpolation can dip a few eV below
+//! it where two subshells are close, e.g. 2s and 2p of F-like ions).
 
 use super::subshell::{Configuration, Subshell};
 use super::ShellState;
@@ -59,11 +61,13 @@ pub(crate) fn ion_shell_bindings(
                                 let b0 = neutral_binding_ev(s)
                                     .unwrap_or(ie_star - w[q_star])
                                     .max(ie0);
-                                if w[q_star] > 0.0 {
+                                let interpolated = if w[q_star] > 0.0 {
                                     b0 + (ie_star - b0) * w[q] / w[q_star]
                                 } else {
                                     b0
-                                }
+                                };
+                                // IE_q is the least energy that removes any electron of ion q.
+                                interpolated.max(ionization_energies_ev.get(q).copied().unwrap_or(0.0))
                             }
                             None => neutral_binding_ev(s).unwrap_or(ie0).max(ie0),
                         }

@@ -9,3 +9,6 @@ pub mod kramers;
 pub mod lotz;
 pub mod radiative_recombination;
 pub mod special;
+pub mod photoionization;
+pub mod relaxation;
+pub mod double_ionization;

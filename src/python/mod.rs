@@ -8,6 +8,7 @@ mod convert;
 mod engine;
 mod errors;
 mod photon;
+mod scenario;
 mod spectrum;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
@@ -19,5 +20,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     engine::register(m)?;
     photon::register(m)?;
     spectrum::register(m)?;
+    scenario::register(m)?;
     Ok(())
 }

@@ -1,0 +1,227 @@
+//! The single-collision electron-impact source of a mass spectrometer (physics.md §10):
+//! each neutral atom meets at most one electron, so the charge states it forms are those one
+//! collision can make.
+//!
+//! Partial cross section for charge c ≥ 1 at electron energy E:
+//!
+//!   σ_c(E) = Σ_s σ_s^Lotz(E) · P_s(c − 1) + δ_{c,2} · σ₂^direct(E)
+//!
+//! * σ_s^Lotz: Lotz ionization of subshell s of the neutral atom ([`crate::processes::lotz`],
+//!   fitted constants where held, simplified elsewhere), with the subshell binding energies
+//!   of physics.md §2;
+//! * P_s(k): relaxation of the hole in s ([`crate::processes::relaxation`]) — an outer hole
+//!   stays (k = 0), an inner hole whose binding exceeds the double-ionization threshold can
+//!   add charges;
+//! * σ₂^direct: direct double ionization ([`crate::processes::double_ionization`]).
+//!
+//! Each σ_c is zero below its threshold Σ_{j<c} IE_j (the relaxation obeys the energy bound).
+//! A spread of electron energies (Gaussian, FWHM) is folded in by averaging σ_c over it.
+//! Not included: direct triple and higher ionization, excitation–autoionization, ionization
+//! of molecules.
+
+use ndarray::Array2;
+use rayon::prelude::*;
+
+use crate::atoms::Element;
+use crate::error::{require_all_positive, require_non_negative, require_positive, Result};
+use crate::processes::double_ionization::direct_double_ionization_cm2;
+use crate::processes::electron_impact::ion_lotz_shells;
+use crate::processes::lotz::lotz_subshell_cross_section_cm2;
+use crate::processes::relaxation::vacancy_relaxation;
+use crate::sources::photon_beam::gaussian_nodes;
+
+/// Partial cross sections of one collision with the neutral atom, by route; index = final
+/// charge 0…Z (index 0 is always 0).
+#[derive(Clone, Debug, PartialEq)]
+pub struct ImpactCrossSections {
+    /// Single ionization of a subshell followed by relaxation (cm²).
+    pub subshell_ionization_cm2: Vec<f64>,
+    /// Direct double ionization (cm²), non-zero at charge 2 only.
+    pub direct_double_cm2: Vec<f64>,
+}
+
+impl ImpactCrossSections {
+    fn zeros(n: usize) -> Self {
+        Self {
+            subshell_ionization_cm2: vec![0.0; n],
+            direct_double_cm2: vec![0.0; n],
+        }
+    }
+
+    /// Sum of both routes per charge (cm²).
+    pub fn total_cm2(&self) -> Vec<f64> {
+        self.subshell_ionization_cm2
+            .iter()
+            .zip(&self.direct_double_cm2)
+            .map(|(a, b)| a + b)
+            .collect()
+    }
+
+    fn add_scaled(&mut self, other: &Self, weight: f64) {
+        for (a, b) in self
+            .subshell_ionization_cm2
+            .iter_mut()
+            .zip(&other.subshell_ionization_cm2)
+        {
+            *a += weight * b;
+        }
+        for (a, b) in self
+            .direct_double_cm2
+            .iter_mut()
+            .zip(&other.direct_double_cm2)
+        {
+            *a += weight * b;
+        }
+    }
+}
+
+/// Partial cross sections at one electron energy (no spread).
+pub fn impact_cross_sections_at(
+    element: &'static Element,
+    energy_ev: f64,
+) -> Result<ImpactCrossSections> {
+    let neutral = element.ion(0)?;
+    let n = element.z() as usize + 1;
+    let mut out = ImpactCrossSections::zeros(n);
+    for (state, lotz) in neutral
+        .subshells()
+        .iter()
+        .zip(ion_lotz_shells(&neutral, None))
+    {
+        let sigma = lotz_subshell_cross_section_cm2(&lotz, energy_ev);
+        if sigma.is_nan() || sigma <= 0.0 {
+            continue;
+        }
+        let yields = vacancy_relaxation(&neutral, state.subshell)?;
+        for (k, p) in yields.iter().enumerate() {
+            if let Some(slot) = out.subshell_ionization_cm2.get_mut(1 + k) {
+                *slot += sigma * p;
+            }
+        }
+    }
+    if let Some(slot) = out.direct_double_cm2.get_mut(2) {
+        *slot = direct_double_ionization_cm2(&neutral, energy_ev);
+    }
+    Ok(out)
+}
+
+/// An electron-impact source in which every atom meets at most one electron: electron
+/// energy (eV) and Gaussian energy spread (FWHM, eV; 0 = monoenergetic).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ElectronImpactSource {
+    pub energy_ev: f64,
+    pub energy_spread_ev: f64,
+}
+
+impl ElectronImpactSource {
+    /// A validated source: energy > 0, spread ≥ 0, both finite.
+    pub fn new(energy_ev: f64, energy_spread_ev: f64) -> Result<Self> {
+        require_positive("energy_ev", energy_ev)?;
+        require_non_negative("energy_spread_ev", energy_spread_ev)?;
+        Ok(Self {
+            energy_ev,
+            energy_spread_ev,
+        })
+    }
+
+    /// Partial cross sections averaged over the energy spread.
+    pub fn cross_sections(&self, element: &'static Element) -> Result<ImpactCrossSections> {
+        let me = Self::new(self.energy_ev, self.energy_spread_ev)?;
+        spread_cross_sections(element, me.energy_ev, me.energy_spread_ev)
+    }
+
+    /// Relative yields of each final charge 0…Z (index 0 is 0) for one collision with the
+    /// neutral atom; they sum to 1, or are all 0 below the first ionization energy.
+    pub fn charge_yields(&self, element: &'static Element) -> Result<Vec<f64>> {
+        let total = self.cross_sections(element)?.total_cm2();
+        let sum: f64 = total.iter().sum();
+        Ok(if sum > 0.0 {
+            total.iter().map(|s| s / sum).collect()
+        } else {
+            total
+        })
+    }
+}
+
+fn spread_cross_sections(
+    element: &'static Element,
+    energy_ev: f64,
+    spread_ev: f64,
+) -> Result<ImpactCrossSections> {
+    let mut out = ImpactCrossSections::zeros(element.z() as usize + 1);
+    for (e, w) in gaussian_nodes(energy_ev, spread_ev) {
+        out.add_scaled(&impact_cross_sections_at(element, e)?, w);
+    }
+    Ok(out)
+}
+
+/// Appearance curves: total partial cross section (cm²) of each final charge 0…Z at each
+/// electron energy, `[energies, Z+1]`, averaged over a Gaussian spread (FWHM, eV).
+pub fn appearance_curves(
+    element: &'static Element,
+    energies_ev: &[f64],
+    energy_spread_ev: f64,
+) -> Result<Array2<f64>> {
+    require_all_positive("energies_ev", energies_ev)?;
+    require_non_negative("energy_spread_ev", energy_spread_ev)?;
+    let n = element.z() as usize + 1;
+    let rows: Vec<Result<Vec<f64>>> = energies_ev
+        .par_iter()
+        .map(|&e| Ok(spread_cross_sections(element, e, energy_spread_ev)?.total_cm2()))
+        .collect();
+    let mut out = Array2::zeros((energies_ev.len(), n));
+    for (i, row) in rows.into_iter().enumerate() {
+        for (j, v) in row?.into_iter().enumerate() {
+            out[[i, j]] = v;
+        }
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::atoms::element;
+
+    #[test]
+    fn nothing_below_the_first_ionization_energy() {
+        let ar = element("Ar").unwrap();
+        let y = ElectronImpactSource::new(15.0, 0.0)
+            .unwrap()
+            .charge_yields(ar)
+            .unwrap();
+        assert!(y.iter().all(|v| *v == 0.0));
+        let y = ElectronImpactSource::new(30.0, 0.0)
+            .unwrap()
+            .charge_yields(ar)
+            .unwrap();
+        assert_eq!(y[1], 1.0);
+    }
+
+    #[test]
+    fn spread_smears_the_threshold() {
+        let ar = element("Ar").unwrap();
+        let sharp = ElectronImpactSource::new(15.5, 0.0)
+            .unwrap()
+            .cross_sections(ar)
+            .unwrap();
+        let smeared = ElectronImpactSource::new(15.5, 1.0)
+            .unwrap()
+            .cross_sections(ar)
+            .unwrap();
+        assert_eq!(sharp.total_cm2()[1], 0.0);
+        assert!(smeared.total_cm2()[1] > 0.0);
+        assert!(ElectronImpactSource::new(70.0, -1.0).is_err());
+        assert!(ElectronImpactSource::new(0.0, 0.0).is_err());
+    }
+
+    #[test]
+    fn appearance_curves_shape() {
+        let ne = element("Ne").unwrap();
+        let m = appearance_curves(ne, &[20.0, 100.0, 2000.0], 0.0).unwrap();
+        assert_eq!(m.shape(), &[3, 11]);
+        assert_eq!(m[[0, 1]], 0.0);
+        assert!(m[[1, 2]] > 0.0);
+        assert!(appearance_curves(ne, &[-1.0], 0.0).is_err());
+    }
+}
