@@ -75,14 +75,22 @@ pub fn require_non_negative(name: &str, value: f64) -> Result<f64> {
 pub fn require_all_positive(name: &str, values: &[f64]) -> Result<()> {
     match values.iter().find(|v| !(v.is_finite() && **v > 0.0)) {
         None => Ok(()),
-        Some(v) => Err(Error::invalid(name, v, "every value must be a finite number > 0")),
+        Some(v) => Err(Error::invalid(
+            name,
+            v,
+            "every value must be a finite number > 0",
+        )),
     }
 }
 
 /// Check that times are finite, non-negative and sorted ascending.
 pub fn require_sorted_times(name: &str, times: &[f64]) -> Result<()> {
     if let Some(t) = times.iter().find(|t| !(t.is_finite() && **t >= 0.0)) {
-        return Err(Error::invalid(name, t, "every time must be finite and >= 0 s"));
+        return Err(Error::invalid(
+            name,
+            t,
+            "every time must be finite and >= 0 s",
+        ));
     }
     if let Some(w) = times.windows(2).find(|w| w[1] < w[0]) {
         return Err(Error::invalid(

@@ -34,6 +34,7 @@ from chargecast.atoms import (
     lotz_peak_energy_ev,
     lotz_rate_coefficient_cm3_s,
 )
+
 # --- engine: electron beam, trap, evolution
 from chargecast.evolution import Evolution
 from chargecast.trap import (
@@ -46,12 +47,66 @@ from chargecast.trap import (
     solve_rate_equations,
     steady_state_rate_equations,
 )
+
 # --- photon and single-collision sources
+# isort: split
+from chargecast.photon import (
+    AppearanceCurves,
+    ChargeYields,
+    ElectronImpactSource,
+    PhotonBeam,
+    PhotonEnergyScan,
+    PhotonSelectivity,
+    PhotonThresholds,
+    appearance_curves,
+    photoionization_cross_section_cm2,
+    photon_selectivity,
+    photon_thresholds,
+    subshell_photoionization_cross_sections_cm2,
+    vacancy_relaxation,
+)
+
 # --- spectrum: masses, A/q lines, overlaps
+# isort: split
+from chargecast.spectrum import (
+    DEFAULT_RESIDUAL_GAS,
+    ChargeStateRanking,
+    LineList,
+    OverlapReport,
+    aq_lines,
+    clean_charge_states,
+    ion_mass_u,
+    overlaps,
+)
+
+# --- scenario files and reports
+# isort: split
+from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
 
 __version__ = "0.1.0"
 
 __all__ = [
+    "AppearanceCurves",
+    "ChargeYields",
+    "ElectronImpactSource",
+    "PhotonBeam",
+    "PhotonEnergyScan",
+    "PhotonSelectivity",
+    "PhotonThresholds",
+    "appearance_curves",
+    "photoionization_cross_section_cm2",
+    "photon_selectivity",
+    "photon_thresholds",
+    "subshell_photoionization_cross_sections_cm2",
+    "vacancy_relaxation",
+    "DEFAULT_RESIDUAL_GAS",
+    "ChargeStateRanking",
+    "LineList",
+    "OverlapReport",
+    "aq_lines",
+    "clean_charge_states",
+    "ion_mass_u",
+    "overlaps",
     "BeamTrap",
     "ElectronBeam",
     "EnergyScan",
@@ -77,4 +132,8 @@ __all__ = [
     "ScenarioError",
     "UnknownElementError",
     "UnknownGasError",
+    "Report",
+    "Scenario",
+    "bundled_scenarios",
+    "load_scenario",
 ]

@@ -38,7 +38,9 @@ class Evolution:
     (1.0, 0.5)
     """
 
-    def __init__(self, element_symbol: str, times_s: np.ndarray, fractions: np.ndarray, label: str = "") -> None:
+    def __init__(
+        self, element_symbol: str, times_s: np.ndarray, fractions: np.ndarray, label: str = ""
+    ) -> None:
         self.element = element_symbol
         self.times_s = np.asarray(times_s, dtype=np.float64)
         self.fractions = np.asarray(fractions, dtype=np.float64)
@@ -57,7 +59,9 @@ class Evolution:
 
     def _check_charge(self, charge: int) -> int:
         if isinstance(charge, bool) or not isinstance(charge, (int, np.integer)) or not 0 <= charge <= self.z:
-            raise ChargeOutOfRangeError(f"charge {charge!r} is out of range for {self.element}: allowed 0..={self.z}")
+            raise ChargeOutOfRangeError(
+                f"charge {charge!r} is out of range for {self.element}: allowed 0..={self.z}"
+            )
         return int(charge)
 
     def mean_charge(self) -> np.ndarray:
@@ -126,7 +130,9 @@ class Evolution:
         df.columns.name = "charge"
         return df
 
-    def plot(self, ax: Optional[Any] = None, charges: Optional[list[int]] = None, threshold: float = 0.01) -> Any:
+    def plot(
+        self, ax: Optional[Any] = None, charges: Optional[list[int]] = None, threshold: float = 0.01
+    ) -> Any:
         """Fractions against time on a log time axis.
 
         Parameters
@@ -151,19 +157,34 @@ class Evolution:
         for k, q in enumerate(qs):
             q = self._check_charge(q)
             t, f = self.times_s[positive], self.fractions[positive, q]
-            ax.plot(t, f, styles[(k // len(LINE_COLORS)) % 4], color=LINE_COLORS[k % len(LINE_COLORS)],
-                    label=f"{q}+")
+            ax.plot(
+                t,
+                f,
+                styles[(k // len(LINE_COLORS)) % 4],
+                color=LINE_COLORS[k % len(LINE_COLORS)],
+                label=f"{q}+",
+            )
             i = int(np.argmax(f))
             if f[i] > 0.05:
-                ax.annotate(f"{q}+", (t[i], f[i]), textcoords="offset points", xytext=(0, 3), ha="center", fontsize=7)
+                ax.annotate(
+                    f"{q}+", (t[i], f[i]), textcoords="offset points", xytext=(0, 3), ha="center", fontsize=7
+                )
         ax.set_xscale("log")
         ax.set_xlabel("confinement time (s)")
         ax.set_ylabel("fraction of ions")
         ax.set_ylim(0, 1.05)
-        ax.set_title(f"{self.element} charge-state evolution" + (f" — {self.label}" if self.label else ""), fontsize=10)
+        ax.set_title(
+            f"{self.element} charge-state evolution" + (f" — {self.label}" if self.label else ""), fontsize=10
+        )
         if len(qs) <= 24:
-            ax.legend(ncol=max(1, len(qs) // 12 + 1), fontsize=7, title="charge", loc="center left",
-                      bbox_to_anchor=(1.0, 0.5), frameon=False)
+            ax.legend(
+                ncol=max(1, len(qs) // 12 + 1),
+                fontsize=7,
+                title="charge",
+                loc="center left",
+                bbox_to_anchor=(1.0, 0.5),
+                frameon=False,
+            )
         ax.grid(True, which="major", alpha=0.3)
         return ax
 
@@ -172,7 +193,14 @@ class Evolution:
         rows = []
         for q in self.dominant_charges(threshold):
             t, f = self.peak(q)
-            rows.append({"charge": q, "peak_fraction": f, "peak_time_s": t, "final_fraction": float(self.fractions[-1, q])})
+            rows.append(
+                {
+                    "charge": q,
+                    "peak_fraction": f,
+                    "peak_time_s": t,
+                    "final_fraction": float(self.fractions[-1, q]),
+                }
+            )
         return rows
 
     def _repr_html_(self) -> str:
@@ -181,15 +209,21 @@ class Evolution:
             f"<td>{r['final_fraction']:.3f}</td></tr>"
             for r in self.summary()
         )
-        title = html.escape(f"{self.element} evolution, {len(self.times_s)} times "
-                            f"{self.times_s[0]:.3g}–{self.times_s[-1]:.3g} s {self.label}")
-        table = (f"<b>{title}</b><table><tr><th>charge</th><th>peak fraction</th><th>peak time (s)</th>"
-                 f"<th>final fraction</th></tr>{rows}</table>")
+        title = html.escape(
+            f"{self.element} evolution, {len(self.times_s)} times "
+            f"{self.times_s[0]:.3g}–{self.times_s[-1]:.3g} s {self.label}"
+        )
+        table = (
+            f"<b>{title}</b><table><tr><th>charge</th><th>peak fraction</th><th>peak time (s)</th>"
+            f"<th>final fraction</th></tr>{rows}</table>"
+        )
         return table + _inline_figure(self)
 
     def __repr__(self) -> str:
-        return (f"Evolution({self.element!r}, {len(self.times_s)} times {self.times_s[0]:.3g}–"
-                f"{self.times_s[-1]:.3g} s, mean charge at end {self.mean_charge()[-1]:.2f})")
+        return (
+            f"Evolution({self.element!r}, {len(self.times_s)} times {self.times_s[0]:.3g}–"
+            f"{self.times_s[-1]:.3g} s, mean charge at end {self.mean_charge()[-1]:.2f})"
+        )
 
 
 def _inline_figure(result: Any) -> str:

@@ -4,7 +4,8 @@ energy, ions per extraction, and the general rate-equation solver."""
 from __future__ import annotations
 
 import html
-from typing import Any, Optional, Sequence, Union
+from collections.abc import Sequence
+from typing import Any, Optional, Union
 
 import numpy as np
 
@@ -90,7 +91,9 @@ class BeamTrap:
         gas_list = [(str(k), as_float(f"residual_gas_pa[{k!r}]", v)) for k, v in gas.items()]
         unknown = set(processes) - set(self._ALL)
         if unknown or isinstance(processes, str):
-            raise InvalidParameterError(f"unknown processes {sorted(unknown) or processes!r}: allowed {self._ALL}")
+            raise InvalidParameterError(
+                f"unknown processes {sorted(unknown) or processes!r}: allowed {self._ALL}"
+            )
         loss = None if loss_per_s is None else as_float_array("loss_per_s", loss_per_s)[0].tolist()
         feed_charge, feed_rate = (None, 0.0)
         if feed is not None:
@@ -226,16 +229,28 @@ class BeamTrap:
             ``best_energy_ev``, ``best_time_s``, ``best_fraction`` and the whole map
             ``fraction[energy, time]`` for plotting.
         """
-        charges = [as_int("charge", charge)] if not isinstance(charge, (list, tuple, np.ndarray)) else [
-            as_int("charge", q) for q in charge
-        ]
+        charges = (
+            [as_int("charge", charge)]
+            if not isinstance(charge, (list, tuple, np.ndarray))
+            else [as_int("charge", q) for q in charge]
+        )
         e, _ = as_float_array("energies_ev", energies_ev)
         t = _times(times_s)
         d = self._trap.energy_time_map(element, charges, e, t)
-        return EnergyScan(_symbol(element), charges, e, t, d["fraction"], d["best_energy_ev"], d["best_time_s"],
-                          d["best_fraction"])
+        return EnergyScan(
+            _symbol(element),
+            charges,
+            e,
+            t,
+            d["fraction"],
+            d["best_energy_ev"],
+            d["best_time_s"],
+            d["best_fraction"],
+        )
 
-    def sweep(self, elements: Sequence[Union[str, int]], energies_ev: Any, times_s: Any) -> dict[str, np.ndarray]:
+    def sweep(
+        self, elements: Sequence[Union[str, int]], energies_ev: Any, times_s: Any
+    ) -> dict[str, np.ndarray]:
         """Evolutions of several elements at several beam energies, computed in parallel.
 
         Parameters
@@ -264,8 +279,17 @@ class BeamTrap:
 class EnergyScan:
     """Fraction of target charge state(s) over an energy × time grid, and its maximum."""
 
-    def __init__(self, element: str, charges: list[int], energies_ev: np.ndarray, times_s: np.ndarray,
-                 fraction: np.ndarray, best_energy_ev: float, best_time_s: float, best_fraction: float) -> None:
+    def __init__(
+        self,
+        element: str,
+        charges: list[int],
+        energies_ev: np.ndarray,
+        times_s: np.ndarray,
+        fraction: np.ndarray,
+        best_energy_ev: float,
+        best_time_s: float,
+        best_fraction: float,
+    ) -> None:
         self.element = element
         self.charges = charges
         self.energies_ev = energies_ev
@@ -291,9 +315,16 @@ class EnergyScan:
         t = np.where(self.times_s > 0, self.times_s, np.nan)
         mesh = ax.pcolormesh(t, self.energies_ev, self.fraction, shading="nearest", cmap="viridis", vmin=0)
         ax.figure.colorbar(mesh, ax=ax, label=f"fraction of {self.element}{self._target()}")
-        ax.plot([self.best_time_s], [self.best_energy_ev], marker="*", color=PALETTE[1], markersize=14,
-                markeredgecolor="black", linestyle="none",
-                label=f"best: {self.best_energy_ev:.4g} eV, {self.best_time_s:.3g} s ({self.best_fraction:.2f})")
+        ax.plot(
+            [self.best_time_s],
+            [self.best_energy_ev],
+            marker="*",
+            color=PALETTE[1],
+            markersize=14,
+            markeredgecolor="black",
+            linestyle="none",
+            label=f"best: {self.best_energy_ev:.4g} eV, {self.best_time_s:.3g} s ({self.best_fraction:.2f})",
+        )
         ax.set_xscale("log")
         if self.energies_ev.max() / max(self.energies_ev.min(), 1e-300) > 20:
             ax.set_yscale("log")
@@ -304,17 +335,22 @@ class EnergyScan:
         return ax
 
     def _repr_html_(self) -> str:
-        head = html.escape(f"{self.element}{self._target()}: best {self.best_energy_ev:.4g} eV at "
-                           f"{self.best_time_s:.3g} s, fraction {self.best_fraction:.3f}")
+        head = html.escape(
+            f"{self.element}{self._target()}: best {self.best_energy_ev:.4g} eV at "
+            f"{self.best_time_s:.3g} s, fraction {self.best_fraction:.3f}"
+        )
         return f"<b>{head}</b>" + _inline_figure(self)
 
     def __repr__(self) -> str:
-        return (f"EnergyScan({self.element}{self._target()}: best_energy_ev={self.best_energy_ev:.4g}, "
-                f"best_time_s={self.best_time_s:.3g}, best_fraction={self.best_fraction:.3f})")
+        return (
+            f"EnergyScan({self.element}{self._target()}: best_energy_ev={self.best_energy_ev:.4g}, "
+            f"best_time_s={self.best_time_s:.3g}, best_fraction={self.best_fraction:.3f})"
+        )
 
 
-def solve_rate_equations(rates_per_s: Any, initial: Any, times_s: Any, loss_per_s: Any = None,
-                         feed_per_s: Any = None) -> np.ndarray:
+def solve_rate_equations(
+    rates_per_s: Any, initial: Any, times_s: Any, loss_per_s: Any = None, feed_per_s: Any = None
+) -> np.ndarray:
     """Solve dN/dt = M·N + s for a general rate network.
 
     Parameters
@@ -343,11 +379,18 @@ def solve_rate_equations(rates_per_s: Any, initial: Any, times_s: Any, loss_per_
     [0.333333, 0.666667]
     """
     r = _matrix("rates_per_s", rates_per_s)
-    return _core.solve_rate_equations(r, as_float_array("initial", initial)[0], _times(times_s),
-                                      _optional("loss_per_s", loss_per_s), _optional("feed_per_s", feed_per_s))
+    return _core.solve_rate_equations(
+        r,
+        as_float_array("initial", initial)[0],
+        _times(times_s),
+        _optional("loss_per_s", loss_per_s),
+        _optional("feed_per_s", feed_per_s),
+    )
 
 
-def steady_state_rate_equations(rates_per_s: Any, loss_per_s: Any = None, feed_per_s: Any = None) -> np.ndarray:
+def steady_state_rate_equations(
+    rates_per_s: Any, loss_per_s: Any = None, feed_per_s: Any = None
+) -> np.ndarray:
     """Steady state of a general rate network (stationary distribution summing to 1, or the
     balance of feed and loss when they are given).
 
@@ -368,7 +411,9 @@ def steady_state_rate_equations(rates_per_s: Any, loss_per_s: Any = None, feed_p
     [0.333333, 0.666667]
     """
     r = _matrix("rates_per_s", rates_per_s)
-    return _core.steady_state_rate_equations(r, _optional("loss_per_s", loss_per_s), _optional("feed_per_s", feed_per_s))
+    return _core.steady_state_rate_equations(
+        r, _optional("loss_per_s", loss_per_s), _optional("feed_per_s", feed_per_s)
+    )
 
 
 def _matrix(name: str, value: Any) -> np.ndarray:
@@ -407,12 +452,21 @@ def brillouin_radius_m(current_a: float, energy_ev: float, magnetic_field_t: flo
     >>> round(brillouin_radius_m(1.0, 1000.0, 1.0) * 1e6)
     148
     """
-    return _core._brillouin_radius_m(as_float("current_a", current_a), as_float("energy_ev", energy_ev),
-                                     as_float("magnetic_field_t", magnetic_field_t))
+    return _core._brillouin_radius_m(
+        as_float("current_a", current_a),
+        as_float("energy_ev", energy_ev),
+        as_float("magnetic_field_t", magnetic_field_t),
+    )
 
 
-def herrmann_radius_m(current_a: float, energy_ev: float, magnetic_field_t: float, cathode_radius_m: float,
-                      cathode_temperature_k: float, cathode_field_t: float = 0.0) -> float:
+def herrmann_radius_m(
+    current_a: float,
+    energy_ev: float,
+    magnetic_field_t: float,
+    cathode_radius_m: float,
+    cathode_temperature_k: float,
+    cathode_field_t: float = 0.0,
+) -> float:
     """Herrmann radius enclosing 80 % of the current (Herrmann 1958).
 
     Parameters
@@ -433,15 +487,23 @@ def herrmann_radius_m(current_a: float, energy_ev: float, magnetic_field_t: floa
     >>> herrmann_radius_m(0.5, 10000.0, 4.0, 1.5e-3, 1400.0, 0.0) > r_b
     True
     """
-    return _core._herrmann_radius_m(as_float("current_a", current_a), as_float("energy_ev", energy_ev),
-                                    as_float("magnetic_field_t", magnetic_field_t),
-                                    as_float("cathode_radius_m", cathode_radius_m),
-                                    as_float("cathode_temperature_k", cathode_temperature_k),
-                                    as_float("cathode_field_t", cathode_field_t))
+    return _core._herrmann_radius_m(
+        as_float("current_a", current_a),
+        as_float("energy_ev", energy_ev),
+        as_float("magnetic_field_t", magnetic_field_t),
+        as_float("cathode_radius_m", cathode_radius_m),
+        as_float("cathode_temperature_k", cathode_temperature_k),
+        as_float("cathode_field_t", cathode_field_t),
+    )
 
 
-def effective_energy_ev(tube_to_cathode_v: float, current_a: float, beam_radius_m: float,
-                        drift_tube_radius_m: float, compensation: float = 0.0) -> float:
+def effective_energy_ev(
+    tube_to_cathode_v: float,
+    current_a: float,
+    beam_radius_m: float,
+    drift_tube_radius_m: float,
+    compensation: float = 0.0,
+) -> float:
     """Electron energy on the beam axis after the space-charge depression, solved self-consistently.
 
     E = e·U − e·ΔU(E)·(1 − f), ΔU = I/(4πε₀v)·(1 + 2 ln(b/a)).
@@ -468,7 +530,10 @@ def effective_energy_ev(tube_to_cathode_v: float, current_a: float, beam_radius_
     >>> 9000.0 < e < 10000.0
     True
     """
-    return _core._effective_energy_ev(as_float("tube_to_cathode_v", tube_to_cathode_v),
-                                      as_float("current_a", current_a), as_float("beam_radius_m", beam_radius_m),
-                                      as_float("drift_tube_radius_m", drift_tube_radius_m),
-                                      as_float("compensation", compensation))
+    return _core._effective_energy_ev(
+        as_float("tube_to_cathode_v", tube_to_cathode_v),
+        as_float("current_a", current_a),
+        as_float("beam_radius_m", beam_radius_m),
+        as_float("drift_tube_radius_m", drift_tube_radius_m),
+        as_float("compensation", compensation),
+    )

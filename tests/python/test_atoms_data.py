@@ -13,10 +13,9 @@ import math
 import os
 import warnings
 
+import chargecast as cc
 import numpy as np
 import pytest
-
-import chargecast as cc
 
 warnings.filterwarnings("ignore")
 
@@ -45,7 +44,7 @@ def test_every_ionization_energy_equals_plasmapy_nist_asd() -> None:
     assert compared >= sum(range(1, 104))
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _neutral_conf(symbol: str) -> dict[tuple[int, str], int]:
     from mendeleev import element as mel
 
@@ -93,8 +92,17 @@ def test_every_ground_configuration_equals_mendeleev() -> None:
 def _xraydb_subshell_edge(z: int, subshell: str) -> float | None:
     import xraydb
 
-    edges = {"1s": ["K"], "2s": ["L1"], "2p": ["L2", "L3"], "3s": ["M1"], "3p": ["M2", "M3"],
-             "3d": ["M4", "M5"], "4s": ["N1"], "4p": ["N2", "N3"], "4d": ["N4", "N5"]}
+    edges = {
+        "1s": ["K"],
+        "2s": ["L1"],
+        "2p": ["L2", "L3"],
+        "3s": ["M1"],
+        "3p": ["M2", "M3"],
+        "3d": ["M4", "M5"],
+        "4s": ["N1"],
+        "4p": ["N2", "N3"],
+        "4d": ["N4", "N5"],
+    }
     weights = {"L2": 2, "L3": 4, "M2": 2, "M3": 4, "M4": 4, "M5": 6, "N2": 2, "N3": 4, "N4": 4, "N5": 6}
     table = xraydb.xray_edges(z)
     names = [e for e in edges.get(subshell, []) if e in table and table[e].energy > 0]

@@ -3,11 +3,10 @@ interpreter and never raise anything but the documented exception classes."""
 
 from __future__ import annotations
 
+import chargecast as cc
 import numpy as np
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
-
-import chargecast as cc
 
 ANY_SCALAR = st.one_of(
     st.text(max_size=12),
@@ -80,7 +79,9 @@ def test_electron_beam(energy, current, radius, field) -> None:
 
 @FAST
 @given(
-    st.dictionaries(st.one_of(st.sampled_from(["H2", "N2", "XX"]), st.text(max_size=4)), ANY_SCALAR, max_size=3),
+    st.dictionaries(
+        st.one_of(st.sampled_from(["H2", "N2", "XX"]), st.text(max_size=4)), ANY_SCALAR, max_size=3
+    ),
     ANY_SCALAR,
     st.lists(st.floats(allow_nan=True, allow_infinity=True), max_size=4),
 )
@@ -98,7 +99,9 @@ def test_trap(gas, length, times) -> None:
 @given(
     st.integers(min_value=1, max_value=6).flatmap(
         lambda n: st.tuples(
-            st.lists(st.floats(allow_nan=True, allow_infinity=True, width=64), min_size=n * n, max_size=n * n),
+            st.lists(
+                st.floats(allow_nan=True, allow_infinity=True, width=64), min_size=n * n, max_size=n * n
+            ),
             st.lists(st.floats(min_value=-1, max_value=2), min_size=n, max_size=n),
         )
     ),
