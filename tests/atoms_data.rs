@@ -82,7 +82,15 @@ fn no_subshell_is_bound_less_than_the_ionization_energy() {
             let ion = e.ion(q).unwrap();
             let ie = ion.ionization_energy_ev().unwrap();
             for s in ion.subshells() {
-                assert!(s.binding_ev >= ie, "{} {} {}: {} < {}", e.symbol(), q, s.subshell, s.binding_ev, ie);
+                assert!(
+                    s.binding_ev >= ie,
+                    "{} {} {}: {} < {}",
+                    e.symbol(),
+                    q,
+                    s.subshell,
+                    s.binding_ev,
+                    ie
+                );
             }
         }
     }

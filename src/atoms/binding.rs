@@ -67,7 +67,8 @@ pub(crate) fn ion_shell_bindings(
                                     b0
                                 };
                                 // IE_q is the least energy that removes any electron of ion q.
-                                interpolated.max(ionization_energies_ev.get(q).copied().unwrap_or(0.0))
+                                interpolated
+                                    .max(ionization_energies_ev.get(q).copied().unwrap_or(0.0))
                             }
                             None => neutral_binding_ev(s).unwrap_or(ie0).max(ie0),
                         }
@@ -85,12 +86,15 @@ pub(crate) fn ion_shell_bindings(
 
 /// First step j ≥ q at which subshell s is the ionized one; failing that (rearrangements
 /// in open d and f shells) the first step at which its occupancy drops.
-fn end_step(configurations: &[Configuration], ionized: &[Subshell], q: usize, s: Subshell) -> Option<usize> {
-    (q..ionized.len())
-        .find(|&j| ionized[j] == s)
-        .or_else(|| {
-            (q..ionized.len()).find(|&j| {
-                configurations.get(j + 1).map_or(0, |c| c.occupancy(s)) < configurations[j].occupancy(s)
-            })
+fn end_step(
+    configurations: &[Configuration],
+    ionized: &[Subshell],
+    q: usize,
+    s: Subshell,
+) -> Option<usize> {
+    (q..ionized.len()).find(|&j| ionized[j] == s).or_else(|| {
+        (q..ionized.len()).find(|&j| {
+            configurations.get(j + 1).map_or(0, |c| c.occupancy(s)) < configurations[j].occupancy(s)
         })
+    })
 }

@@ -88,8 +88,16 @@ impl Element {
     }
     /// Naturally occurring isotopes, most abundant first.
     pub fn natural_isotopes(&self) -> Vec<&Isotope> {
-        let mut v: Vec<&Isotope> = self.isotopes.iter().filter(|i| i.abundance.is_some()).collect();
-        v.sort_by(|a, b| b.abundance.partial_cmp(&a.abundance).unwrap_or(std::cmp::Ordering::Equal));
+        let mut v: Vec<&Isotope> = self
+            .isotopes
+            .iter()
+            .filter(|i| i.abundance.is_some())
+            .collect();
+        v.sort_by(|a, b| {
+            b.abundance
+                .partial_cmp(&a.abundance)
+                .unwrap_or(std::cmp::Ordering::Equal)
+        });
         v
     }
     pub fn isotope(&self, mass_number: u32) -> Result<&Isotope> {
@@ -129,7 +137,10 @@ impl Element {
                 ),
             });
         }
-        Ok(Ion { element: self, charge: q })
+        Ok(Ion {
+            element: self,
+            charge: q,
+        })
     }
 
     /// Error unless 0 ≤ charge ≤ max.
@@ -152,7 +163,9 @@ impl Element {
         self.configurations.get(charge as usize)
     }
     pub(crate) fn shells_of(&self, charge: u32) -> &[ShellState] {
-        self.ion_shells.get(charge as usize).map_or(&[], |v| v.as_slice())
+        self.ion_shells
+            .get(charge as usize)
+            .map_or(&[], |v| v.as_slice())
     }
 }
 
@@ -197,10 +210,17 @@ pub fn element_by_z(z: i64) -> Result<&'static Element> {
 
 fn build_elements() -> Result<Vec<Element>> {
     let mut elements: Vec<Element> = Vec::new();
-    for row in table::rows("elements.csv", table::ELEMENTS_CSV, &["z", "symbol", "name", "atomic_weight_u"])? {
+    for row in table::rows(
+        "elements.csv",
+        table::ELEMENTS_CSV,
+        &["z", "symbol", "name", "atomic_weight_u"],
+    )? {
         let z = parse_u32("elements.csv", row[0])?;
         if z as usize != elements.len() + 1 {
-            return Err(table::corrupt("elements.csv", format!("Z = {z} out of order")));
+            return Err(table::corrupt(
+                "elements.csv",
+                format!("Z = {z} out of order"),
+            ));
         }
         elements.push(Element {
             z,
@@ -228,7 +248,14 @@ fn build_elements() -> Result<Vec<Element>> {
 
 fn read_ionization_energies(elements: &mut [Element]) -> Result<()> {
     const NAME: &str = "ionization_energies.csv";
-    let columns = ["z", "charge", "ionization_energy_ev", "uncertainty_ev", "kind", "ground_shells"];
+    let columns = [
+        "z",
+        "charge",
+        "ionization_energy_ev",
+        "uncertainty_ev",
+        "kind",
+        "ground_shells",
+    ];
     for row in table::rows(NAME, table::IONIZATION_CSV, &columns)? {
         let z = parse_u32(NAME, row[0])?;
         let charge = parse_u32(NAME, row[1])?;
@@ -245,9 +272,16 @@ fn read_ionization_energies(elements: &mut [Element]) -> Result<()> {
             "theoretical" => EnergyKind::Theoretical,
             other => return Err(table::corrupt(NAME, format!("kind {other:?}"))),
         };
-        let config = Configuration::parse(row[5]).map_err(|err| table::corrupt(NAME, err.to_string()))?;
+        let config =
+            Configuration::parse(row[5]).map_err(|err| table::corrupt(NAME, err.to_string()))?;
         if config.electrons() != z - charge {
-            return Err(table::corrupt(NAME, format!("Z = {z} charge {charge}: configuration has {} electrons", config.electrons())));
+            return Err(table::corrupt(
+                NAME,
+                format!(
+                    "Z = {z} charge {charge}: configuration has {} electrons",
+                    config.electrons()
+                ),
+            ));
         }
         e.ionization_energies_ev.push(parse_f64(NAME, row[2])?);
         e.uncertainties_ev.push(parse_f64(NAME, row[3])?);
@@ -294,7 +328,10 @@ mod tests {
         assert_eq!(element("Krypton").unwrap().z(), 36);
         assert_eq!(element(" 36 ").unwrap().symbol(), "Kr");
         assert_eq!(element_by_z(92).unwrap().symbol(), "U");
-        assert!(matches!(element("Kryptonite"), Err(Error::UnknownElement { .. })));
+        assert!(matches!(
+            element("Kryptonite"),
+            Err(Error::UnknownElement { .. })
+        ));
         assert!(element_by_z(0).is_err());
         assert!(element_by_z(-3).is_err());
         assert!(element_by_z(1000).is_err());

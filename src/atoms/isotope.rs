@@ -16,7 +16,11 @@ pub struct Isotope {
 
 pub(crate) fn read_isotopes(elements: &mut [Element]) -> Result<()> {
     const NAME: &str = "isotopes.csv";
-    for row in table::rows(NAME, table::ISOTOPES_CSV, &["z", "mass_number", "mass_u", "abundance"])? {
+    for row in table::rows(
+        NAME,
+        table::ISOTOPES_CSV,
+        &["z", "mass_number", "mass_u", "abundance"],
+    )? {
         let z = parse_u32(NAME, row[0])?;
         let abundance = parse_f64(NAME, row[3])?;
         let iso = Isotope {

@@ -31,7 +31,10 @@ pub struct Ion {
 impl Ion {
     /// Ground configuration of this ion.
     pub fn configuration(&self) -> Configuration {
-        self.element.configuration(self.charge).cloned().unwrap_or_default()
+        self.element
+            .configuration(self.charge)
+            .cloned()
+            .unwrap_or_default()
     }
 
     /// Occupied subshells with occupancy and binding energy (eV), inner first.
@@ -48,12 +51,17 @@ impl Ion {
 
     /// Energy to go from this charge to the next (None for the bare ion).
     pub fn ionization_energy_ev(&self) -> Option<f64> {
-        self.element.ionization_energies_ev().get(self.charge as usize).copied()
+        self.element
+            .ionization_energies_ev()
+            .get(self.charge as usize)
+            .copied()
     }
 
     /// Energy to make this ion from the neutral atom: the sum of the ionization energies below it.
     pub fn threshold_ev(&self) -> f64 {
-        self.element.ionization_energies_ev()[..self.charge as usize].iter().sum()
+        self.element.ionization_energies_ev()[..self.charge as usize]
+            .iter()
+            .sum()
     }
 
     /// Outermost occupied shell (n, electrons in it); (1, 0) for a bare ion.

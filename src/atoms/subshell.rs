@@ -25,10 +25,21 @@ impl Subshell {
 
     /// Parse a label such as `"3d"`.
     pub fn parse(label: &str) -> Result<Self> {
-        let bad = || Error::invalid("subshell", format!("{label:?}"), "a label such as \"1s\", \"2p\" or \"4f\"");
+        let bad = || {
+            Error::invalid(
+                "subshell",
+                format!("{label:?}"),
+                "a label such as \"1s\", \"2p\" or \"4f\"",
+            )
+        };
         let letter = label.chars().last().ok_or_else(bad)?;
-        let n: u32 = label[..label.len() - letter.len_utf8()].parse().map_err(|_| bad())?;
-        let l = L_LETTERS.iter().position(|c| *c == letter).ok_or_else(bad)? as u32;
+        let n: u32 = label[..label.len() - letter.len_utf8()]
+            .parse()
+            .map_err(|_| bad())?;
+        let l = L_LETTERS
+            .iter()
+            .position(|c| *c == letter)
+            .ok_or_else(bad)? as u32;
         if n == 0 || l >= n {
             return Err(bad());
         }
@@ -82,7 +93,8 @@ impl Configuration {
         let bad = |why: &str| Error::invalid("configuration", format!("{text:?}"), why);
         for part in text.split('.').filter(|p| !p.is_empty()) {
             if let Some(symbol) = part.strip_prefix('[').and_then(|p| p.strip_suffix(']')) {
-                let inner = core(symbol).ok_or_else(|| bad("cores allowed: [He] [Ne] [Ar] [Kr] [Xe] [Rn] [Cd] [Hg]"))?;
+                let inner = core(symbol)
+                    .ok_or_else(|| bad("cores allowed: [He] [Ne] [Ar] [Kr] [Xe] [Rn] [Cd] [Hg]"))?;
                 if depth > 4 {
                     return Err(bad("cores nest too deeply"));
                 }
@@ -99,7 +111,9 @@ impl Configuration {
             let occupancy: u32 = if split == part.len() {
                 1
             } else {
-                part[split..].parse().map_err(|_| bad("occupancy must be a whole number"))?
+                part[split..]
+                    .parse()
+                    .map_err(|_| bad("occupancy must be a whole number"))?
             };
             if occupancy == 0 || occupancy > subshell.capacity() {
                 return Err(bad("occupancy must be between 1 and the subshell capacity"));
@@ -132,7 +146,14 @@ impl Configuration {
     pub fn valence_shell(&self) -> (u32, u32) {
         match self.shells.iter().map(|(s, _)| s.n).max() {
             None => (1, 0),
-            Some(n) => (n, self.shells.iter().filter(|(s, _)| s.n == n).map(|(_, k)| k).sum()),
+            Some(n) => (
+                n,
+                self.shells
+                    .iter()
+                    .filter(|(s, _)| s.n == n)
+                    .map(|(_, k)| k)
+                    .sum(),
+            ),
         }
     }
 

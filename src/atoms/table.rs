@@ -3,15 +3,16 @@
 use crate::error::{Error, Result};
 
 /// The rows of an embedded CSV file as string fields, header checked, comments skipped.
-pub(crate) fn rows<'a>(
-    name: &str,
-    text: &'a str,
-    columns: &[&str],
-) -> Result<Vec<Vec<&'a str>>> {
-    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+pub(crate) fn rows<'a>(name: &str, text: &'a str, columns: &[&str]) -> Result<Vec<Vec<&'a str>>> {
+    let mut lines = text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty());
     let header: Vec<&str> = lines.next().unwrap_or("").split(',').collect();
     if header != columns {
-        return Err(corrupt(name, format!("header {header:?}, expected {columns:?}")));
+        return Err(corrupt(
+            name,
+            format!("header {header:?}, expected {columns:?}"),
+        ));
     }
     lines
         .enumerate()
@@ -20,7 +21,10 @@ pub(crate) fn rows<'a>(
             if fields.len() == columns.len() {
                 Ok(fields)
             } else {
-                Err(corrupt(name, format!("data row {} has {} fields", i + 1, fields.len())))
+                Err(corrupt(
+                    name,
+                    format!("data row {} has {} fields", i + 1, fields.len()),
+                ))
             }
         })
         .collect()

@@ -45,13 +45,25 @@ pub fn edge_binding_ev(levels: &[XrayLevel], subshell: Subshell) -> Option<f64> 
     let (sum, weight) = levels
         .iter()
         .filter(|l| l.subshell == subshell && l.binding_ev > 0.0)
-        .fold((0.0, 0.0), |(s, w), l| (s + l.binding_ev * l.capacity() as f64, w + l.capacity() as f64));
+        .fold((0.0, 0.0), |(s, w), l| {
+            (
+                s + l.binding_ev * l.capacity() as f64,
+                w + l.capacity() as f64,
+            )
+        });
     (weight > 0.0).then(|| sum / weight)
 }
 
 pub(crate) fn read_levels(elements: &mut [Element]) -> Result<()> {
     const NAME: &str = "xray_levels.csv";
-    let columns = ["z", "edge", "subshell", "binding_ev", "jump_ratio", "fluorescence_yield"];
+    let columns = [
+        "z",
+        "edge",
+        "subshell",
+        "binding_ev",
+        "jump_ratio",
+        "fluorescence_yield",
+    ];
     for row in table::rows(NAME, table::XRAY_LEVELS_CSV, &columns)? {
         let z = parse_u32(NAME, row[0])?;
         let level = XrayLevel {
@@ -66,24 +78,36 @@ pub(crate) fn read_levels(elements: &mut [Element]) -> Result<()> {
         }
     }
     const CK: &str = "coster_kronig.csv";
-    for row in table::rows(CK, table::COSTER_KRONIG_CSV, &["z", "initial", "final", "probability"])? {
+    for row in table::rows(
+        CK,
+        table::COSTER_KRONIG_CSV,
+        &["z", "initial", "final", "probability"],
+    )? {
         let z = parse_u32(CK, row[0])?;
         let p = parse_f64(CK, row[3])?;
         if let Some(e) = elements.get_mut((z as usize).wrapping_sub(1)) {
-            e.coster_kronig.push((row[1].to_string(), row[2].to_string(), p));
+            e.coster_kronig
+                .push((row[1].to_string(), row[2].to_string(), p));
         }
     }
     Ok(())
 }
 
+/// (energy_ev, cross_section_cm2) rows of every element, index Z − 1.
+type PerElementTable = Vec<Vec<(f64, f64)>>;
+
 /// Tabulated neutral photoabsorption (energy_ev, cross_section_cm2), sorted by energy,
 /// 100 eV – 800 keV, for Z = 1 … 98; None elsewhere.
 pub fn neutral_photoabsorption(z: u32) -> Result<Option<&'static [(f64, f64)]>> {
-    static TABLE: OnceLock<Result<Vec<Vec<(f64, f64)>>>> = OnceLock::new();
+    static TABLE: OnceLock<Result<PerElementTable>> = OnceLock::new();
     let table = TABLE.get_or_init(|| {
         const NAME: &str = "photoabsorption.csv";
         let mut per_z: Vec<Vec<(f64, f64)>> = Vec::new();
-        for row in table::rows(NAME, table::PHOTOABSORPTION_CSV, &["z", "energy_ev", "cross_section_cm2"])? {
+        for row in table::rows(
+            NAME,
+            table::PHOTOABSORPTION_CSV,
+            &["z", "energy_ev", "cross_section_cm2"],
+        )? {
             let z = parse_u32(NAME, row[0])? as usize;
             if z == 0 {
                 return Err(table::corrupt(NAME, "Z = 0".into()));

@@ -3,12 +3,12 @@
 //! are wired in by the callers.
 
 pub mod charge_exchange;
+pub mod double_ionization;
 pub mod electron_impact;
 pub mod gases;
 pub mod kramers;
 pub mod lotz;
-pub mod radiative_recombination;
-pub mod special;
 pub mod photoionization;
+pub mod radiative_recombination;
 pub mod relaxation;
-pub mod double_ionization;
+pub mod special;

@@ -48,7 +48,11 @@ impl PyElement {
     }
     #[getter]
     fn ionization_energy_kinds(&self) -> Vec<&'static str> {
-        self.inner.ionization_energy_kinds().iter().map(|k| k.label()).collect()
+        self.inner
+            .ionization_energy_kinds()
+            .iter()
+            .map(|k| k.label())
+            .collect()
     }
     #[getter]
     fn is_complete(&self) -> bool {
@@ -60,7 +64,11 @@ impl PyElement {
         })
     }
     fn configuration(&self, charge: &Bound<'_, PyAny>) -> PyResult<String> {
-        Ok(self.inner.ion(int_arg("charge", charge)?)?.configuration().label())
+        Ok(self
+            .inner
+            .ion(int_arg("charge", charge)?)?
+            .configuration()
+            .label())
     }
     /// (mass_number, mass_u, abundance or None) of every isotope with a measured mass.
     fn isotopes(&self) -> Vec<(u32, f64, Option<f64>)> {
@@ -75,7 +83,15 @@ impl PyElement {
         self.inner
             .xray_levels()
             .iter()
-            .map(|l| (l.edge.clone(), l.subshell.label(), l.binding_ev, l.jump_ratio, l.fluorescence_yield))
+            .map(|l| {
+                (
+                    l.edge.clone(),
+                    l.subshell.label(),
+                    l.binding_ev,
+                    l.jump_ratio,
+                    l.fluorescence_yield,
+                )
+            })
             .collect()
     }
     fn __repr__(&self) -> String {
@@ -143,7 +159,11 @@ impl PyIon {
             .collect()
     }
     fn __repr__(&self) -> String {
-        format!("Ion({:?}, charge={})", self.inner.element.symbol(), self.inner.charge)
+        format!(
+            "Ion({:?}, charge={})",
+            self.inner.element.symbol(),
+            self.inner.charge
+        )
     }
 }
 
@@ -180,7 +200,9 @@ fn lotz_cross_section_cm2<'py>(
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
     let energies = vec_arg(&energy_ev);
-    let out = guard(py, || ionization_cross_sections_cm2(el, charge, &energies, constants(a, b, c)))?;
+    let out = guard(py, || {
+        ionization_cross_sections_cm2(el, charge, &energies, constants(a, b, c))
+    })?;
     Ok(to_py(py, out))
 }
 
@@ -197,7 +219,9 @@ fn lotz_rate_coefficient_cm3_s<'py>(
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
     let temps = vec_arg(&temperature_ev);
-    let out = guard(py, || ionization_rate_coefficients_cm3_s(el, charge, &temps, constants(a, b, c)))?;
+    let out = guard(py, || {
+        ionization_rate_coefficients_cm3_s(el, charge, &temps, constants(a, b, c))
+    })?;
     Ok(to_py(py, out))
 }
 
@@ -210,7 +234,11 @@ fn lotz_peak_energy_ev(
     b: Option<f64>,
     c: Option<f64>,
 ) -> PyResult<f64> {
-    Ok(peak_energy_ev(element_arg(element)?, charge, constants(a, b, c))?)
+    Ok(peak_energy_ev(
+        element_arg(element)?,
+        charge,
+        constants(a, b, c),
+    )?)
 }
 
 /// Ionization-only breeding time (s) to reach `charge`, one value per energy.
@@ -254,7 +282,12 @@ fn _j_tau_c_cm2<'py>(
     let el = element_arg(element)?;
     let energies = vec_arg(&energy_ev);
     let k = constants(a, b, c);
-    let out = guard(py, || energies.iter().map(|e| j_tau_c_cm2(el, charge, *e, k)).collect())?;
+    let out = guard(py, || {
+        energies
+            .iter()
+            .map(|e| j_tau_c_cm2(el, charge, *e, k))
+            .collect()
+    })?;
     Ok(to_py(py, out))
 }
 
@@ -274,12 +307,22 @@ fn _breeding_ladder<'py>(
 ) -> PyResult<Bound<'py, PyDict>> {
     let el = element_arg(element)?;
     let k = constants(a, b, c);
-    let steps = guard(py, || breeding_ladder(el, charge, energy_ev, current_density_a_cm2, k))?;
+    let steps = guard(py, || {
+        breeding_ladder(el, charge, energy_ev, current_density_a_cm2, k)
+    })?;
     let d = PyDict::new(py);
-    let col = |f: &dyn Fn(&crate::sources::breeding::BreedingStep) -> f64| -> Vec<f64> { steps.iter().map(f).collect() };
+    let col = |f: &dyn Fn(&crate::sources::breeding::BreedingStep) -> f64| -> Vec<f64> {
+        steps.iter().map(f).collect()
+    };
     d.set_item("charge", steps.iter().map(|s| s.charge).collect::<Vec<_>>())?;
-    d.set_item("ionization_energy_ev", to_py(py, col(&|s| s.ionization_energy_ev)))?;
-    d.set_item("cross_section_cm2", to_py(py, col(&|s| s.cross_section_cm2)))?;
+    d.set_item(
+        "ionization_energy_ev",
+        to_py(py, col(&|s| s.ionization_energy_ev)),
+    )?;
+    d.set_item(
+        "cross_section_cm2",
+        to_py(py, col(&|s| s.cross_section_cm2)),
+    )?;
     d.set_item("rate_per_s", to_py(py, col(&|s| s.rate_per_s)))?;
     d.set_item("time_to_next_s", to_py(py, col(&|s| s.time_to_next_s)))?;
     d.set_item("j_tau_c_cm2", to_py(py, col(&|s| s.j_tau_c_cm2)))?;

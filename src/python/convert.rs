@@ -29,7 +29,10 @@ pub(crate) fn element_arg(value: &Bound<'_, PyAny>) -> Result<&'static Element> 
 
 fn bad_element(value: &Bound<'_, PyAny>) -> Error {
     Error::UnknownElement {
-        given: value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into()),
+        given: value
+            .repr()
+            .map(|r| r.to_string())
+            .unwrap_or_else(|_| "?".into()),
         max_z: 118,
     }
 }
@@ -52,7 +55,10 @@ pub(crate) fn to_py<'py>(py: Python<'py>, v: Vec<f64>) -> Bound<'py, PyArray1<f6
     v.into_pyarray(py)
 }
 
-pub(crate) fn matrix_to_py<'py>(py: Python<'py>, a: ndarray::Array2<f64>) -> Bound<'py, PyArray2<f64>> {
+pub(crate) fn matrix_to_py<'py>(
+    py: Python<'py>,
+    a: ndarray::Array2<f64>,
+) -> Bound<'py, PyArray2<f64>> {
     a.into_pyarray(py)
 }
 
@@ -63,7 +69,10 @@ pub(crate) fn vec_arg(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
 /// A whole number from Python (bool and non-integers rejected with a clear message).
 pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<i64> {
     if value.is_instance_of::<PyBool>() || !value.is_instance_of::<PyInt>() {
-        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        let shown = value
+            .repr()
+            .map(|r| r.to_string())
+            .unwrap_or_else(|_| "?".into());
         return Err(Error::invalid(name, shown, "must be a whole number (int)"));
     }
     value
@@ -74,11 +83,17 @@ pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<i64> {
 /// A real number from Python (int or float; bool, str and others rejected clearly).
 pub(crate) fn float_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<f64> {
     if value.is_instance_of::<PyBool>() || value.is_instance_of::<PyString>() {
-        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        let shown = value
+            .repr()
+            .map(|r| r.to_string())
+            .unwrap_or_else(|_| "?".into());
         return Err(Error::invalid(name, shown, "must be a number"));
     }
     value.extract::<f64>().map_err(|_| {
-        let shown = value.repr().map(|r| r.to_string()).unwrap_or_else(|_| "?".into());
+        let shown = value
+            .repr()
+            .map(|r| r.to_string())
+            .unwrap_or_else(|_| "?".into());
         Error::invalid(name, shown, "must be a number")
     })
 }

@@ -48,7 +48,11 @@ impl PyElectronBeam {
         let cathode_radius_m = opt_float_arg("cathode_radius_m", cathode_radius_m)?;
         let cathode_temperature_k = opt_float_arg("cathode_temperature_k", cathode_temperature_k)?;
         let cathode_field_t = opt_float_arg("cathode_field_t", cathode_field_t)?.unwrap_or(0.0);
-        let given = [radius_m.is_some(), current_density_a_cm2.is_some(), magnetic_field_t.is_some()];
+        let given = [
+            radius_m.is_some(),
+            current_density_a_cm2.is_some(),
+            magnetic_field_t.is_some(),
+        ];
         if given.iter().filter(|g| **g).count() != 1 {
             return Err(Error::invalid(
                 "beam size",
@@ -105,9 +109,19 @@ impl PyElectronBeam {
         let drift_tube_radius_m = float_arg("drift_tube_radius_m", drift_tube_radius_m)?;
         crate::error::require_positive("drift_tube_radius_m", drift_tube_radius_m)?;
         if drift_tube_radius_m < self.inner.radius_m {
-            return Err(Error::invalid("drift_tube_radius_m", drift_tube_radius_m, "must be >= the beam radius").into());
+            return Err(Error::invalid(
+                "drift_tube_radius_m",
+                drift_tube_radius_m,
+                "must be >= the beam radius",
+            )
+            .into());
         }
-        Ok(space_charge_depression_v(self.inner.current_a, self.inner.energy_ev, self.inner.radius_m, drift_tube_radius_m))
+        Ok(space_charge_depression_v(
+            self.inner.current_a,
+            self.inner.energy_ev,
+            self.inner.radius_m,
+            drift_tube_radius_m,
+        ))
     }
     fn __repr__(&self) -> String {
         format!(
@@ -118,7 +132,11 @@ impl PyElectronBeam {
 }
 
 fn unreachable_beam() -> Result<ElectronBeam> {
-    Err(Error::invalid("beam size", "none", "give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t"))
+    Err(Error::invalid(
+        "beam size",
+        "none",
+        "give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t",
+    ))
 }
 
 /// The core trap object; the Python class `chargecast.BeamTrap` wraps it.
@@ -147,7 +165,12 @@ impl PyBeamTrap {
         radiative_recombination: bool,
         charge_exchange: bool,
     ) -> PyResult<Self> {
-        let mut inner = BeamTrap::new(beam.inner.clone(), length_m, &residual_gas_pa, ion_temperature_ev)?;
+        let mut inner = BeamTrap::new(
+            beam.inner.clone(),
+            length_m,
+            &residual_gas_pa,
+            ion_temperature_ev,
+        )?;
         crate::error::require_positive("gas_temperature_k", gas_temperature_k)?;
         if !(compensation.is_finite() && (0.0..=1.0).contains(&compensation)) {
             return Err(Error::invalid("compensation", compensation, "must lie in 0..=1").into());
@@ -169,7 +192,9 @@ impl PyBeamTrap {
 
     #[getter]
     fn beam(&self) -> PyElectronBeam {
-        PyElectronBeam { inner: self.inner.beam.clone() }
+        PyElectronBeam {
+            inner: self.inner.beam.clone(),
+        }
     }
     #[getter]
     fn electrons_in_trap(&self) -> f64 {
@@ -189,13 +214,21 @@ impl PyBeamTrap {
         Ok(matrix_to_py(py, out))
     }
 
-    fn steady_state<'py>(&self, py: Python<'py>, element: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    fn steady_state<'py>(
+        &self,
+        py: Python<'py>,
+        element: &Bound<'py, PyAny>,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
         let el = element_arg(element)?;
         Ok(to_py(py, guard(py, || self.inner.steady_state(el))?))
     }
 
     /// Rate matrix rates[from, to] (s⁻¹) of the element's network, and loss and feed vectors.
-    fn rates<'py>(&self, py: Python<'py>, element: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+    fn rates<'py>(
+        &self,
+        py: Python<'py>,
+        element: &Bound<'py, PyAny>,
+    ) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let el = element_arg(element)?;
         let net = self.inner.network(el)?;
         Ok(matrix_to_py(py, rate_matrix(&net)))
@@ -206,11 +239,16 @@ impl PyBeamTrap {
         py: Python<'py>,
         fractions: PyReadonlyArray1<'py, f64>,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        Ok(to_py(py, self.inner.ions_per_extraction(&vec_arg(&fractions))?))
+        Ok(to_py(
+            py,
+            self.inner.ions_per_extraction(&vec_arg(&fractions))?,
+        ))
     }
 
     fn with_energy(&self, energy_ev: f64) -> PyResult<Self> {
-        Ok(PyBeamTrap { inner: self.inner.with_energy(energy_ev)? })
+        Ok(PyBeamTrap {
+            inner: self.inner.with_energy(energy_ev)?,
+        })
     }
 
     fn energy_time_map<'py>(
@@ -249,7 +287,9 @@ impl PyBeamTrap {
         let els: Vec<&'static Element> = elements.iter().map(element_arg).collect::<Result<_>>()?;
         let (e, t) = (vec_arg(&energies_ev), vec_arg(&times_s));
         crate::error::require_all_positive("energies_ev", &e)?;
-        let jobs: Vec<(usize, f64)> = (0..els.len()).flat_map(|i| e.iter().map(move |x| (i, *x))).collect();
+        let jobs: Vec<(usize, f64)> = (0..els.len())
+            .flat_map(|i| e.iter().map(move |x| (i, *x)))
+            .collect();
         let results = guard(py, || {
             jobs.par_iter()
                 .map(|(i, energy)| self.inner.with_energy(*energy)?.evolve(els[*i], &t, 0))
@@ -260,7 +300,8 @@ impl PyBeamTrap {
             let n = el.z() as usize + 1;
             let mut cube = ndarray::Array3::<f64>::zeros((e.len(), t.len(), n));
             for (k, _) in e.iter().enumerate() {
-                cube.index_axis_mut(ndarray::Axis(0), k).assign(&results[i * e.len() + k]);
+                cube.index_axis_mut(ndarray::Axis(0), k)
+                    .assign(&results[i * e.len() + k]);
             }
             let arr: Bound<'py, PyArray3<f64>> = cube.to_pyarray(py);
             d.set_item(el.symbol(), arr)?;
@@ -296,7 +337,11 @@ fn network_from(
     for (name, v, set) in [("loss_per_s", loss, 0), ("feed_per_s", feed, 1)] {
         if let Some(v) = v {
             if v.len() != n {
-                return Err(Error::invalid(name, format!("{} values", v.len()), &format!("needs one value per state ({n})")));
+                return Err(Error::invalid(
+                    name,
+                    format!("{} values", v.len()),
+                    &format!("needs one value per state ({n})"),
+                ));
             }
             for (q, x) in v.iter().enumerate() {
                 if set == 0 {
@@ -321,7 +366,11 @@ fn solve_rate_equations<'py>(
     loss_per_s: Option<PyReadonlyArray1<'py, f64>>,
     feed_per_s: Option<PyReadonlyArray1<'py, f64>>,
 ) -> PyResult<Bound<'py, PyArray2<f64>>> {
-    let net = network_from(&rates_per_s.as_array(), loss_per_s.map(|a| vec_arg(&a)), feed_per_s.map(|a| vec_arg(&a)))?;
+    let net = network_from(
+        &rates_per_s.as_array(),
+        loss_per_s.map(|a| vec_arg(&a)),
+        feed_per_s.map(|a| vec_arg(&a)),
+    )?;
     let (init, times) = (vec_arg(&initial), vec_arg(&times_s));
     Ok(matrix_to_py(py, guard(py, || evolve(&net, &init, &times))?))
 }
@@ -335,7 +384,11 @@ fn steady_state_rate_equations<'py>(
     loss_per_s: Option<PyReadonlyArray1<'py, f64>>,
     feed_per_s: Option<PyReadonlyArray1<'py, f64>>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let net = network_from(&rates_per_s.as_array(), loss_per_s.map(|a| vec_arg(&a)), feed_per_s.map(|a| vec_arg(&a)))?;
+    let net = network_from(
+        &rates_per_s.as_array(),
+        loss_per_s.map(|a| vec_arg(&a)),
+        feed_per_s.map(|a| vec_arg(&a)),
+    )?;
     Ok(to_py(py, guard(py, || steady_state(&net))?))
 }
 
@@ -382,7 +435,13 @@ fn _effective_energy_ev(
     drift_tube_radius_m: f64,
     compensation: f64,
 ) -> PyResult<f64> {
-    Ok(effective_energy_ev(tube_to_cathode_v, current_a, beam_radius_m, drift_tube_radius_m, compensation)?)
+    Ok(effective_energy_ev(
+        tube_to_cathode_v,
+        current_a,
+        beam_radius_m,
+        drift_tube_radius_m,
+        compensation,
+    )?)
 }
 
 #[pyfunction]

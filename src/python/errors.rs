@@ -7,13 +7,48 @@ use pyo3::prelude::*;
 
 use crate::error::Error;
 
-create_exception!(chargecast, ChargecastError, PyValueError, "Base class of every chargecast error.");
-create_exception!(chargecast, UnknownElementError, ChargecastError, "The element symbol, name or Z is not known.");
-create_exception!(chargecast, ChargeOutOfRangeError, ChargecastError, "A charge state outside the allowed range.");
-create_exception!(chargecast, NoDataError, ChargecastError, "The tables hold no data for this ion or quantity.");
-create_exception!(chargecast, InvalidParameterError, ChargecastError, "A parameter that is NaN, infinite, non-positive or inconsistent.");
-create_exception!(chargecast, UnknownGasError, InvalidParameterError, "A gas that is not in the built-in gas table.");
-create_exception!(chargecast, ScenarioError, ChargecastError, "A scenario file that cannot be read or breaks the schema.");
+create_exception!(
+    chargecast,
+    ChargecastError,
+    PyValueError,
+    "Base class of every chargecast error."
+);
+create_exception!(
+    chargecast,
+    UnknownElementError,
+    ChargecastError,
+    "The element symbol, name or Z is not known."
+);
+create_exception!(
+    chargecast,
+    ChargeOutOfRangeError,
+    ChargecastError,
+    "A charge state outside the allowed range."
+);
+create_exception!(
+    chargecast,
+    NoDataError,
+    ChargecastError,
+    "The tables hold no data for this ion or quantity."
+);
+create_exception!(
+    chargecast,
+    InvalidParameterError,
+    ChargecastError,
+    "A parameter that is NaN, infinite, non-positive or inconsistent."
+);
+create_exception!(
+    chargecast,
+    UnknownGasError,
+    InvalidParameterError,
+    "A gas that is not in the built-in gas table."
+);
+create_exception!(
+    chargecast,
+    ScenarioError,
+    ChargecastError,
+    "A scenario file that cannot be read or breaks the schema."
+);
 
 /// The Python exception for a core error.
 pub(crate) fn to_py_err(err: Error) -> PyErr {
@@ -38,9 +73,15 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     let py = m.py();
     m.add("ChargecastError", py.get_type::<ChargecastError>())?;
     m.add("UnknownElementError", py.get_type::<UnknownElementError>())?;
-    m.add("ChargeOutOfRangeError", py.get_type::<ChargeOutOfRangeError>())?;
+    m.add(
+        "ChargeOutOfRangeError",
+        py.get_type::<ChargeOutOfRangeError>(),
+    )?;
     m.add("NoDataError", py.get_type::<NoDataError>())?;
-    m.add("InvalidParameterError", py.get_type::<InvalidParameterError>())?;
+    m.add(
+        "InvalidParameterError",
+        py.get_type::<InvalidParameterError>(),
+    )?;
     m.add("UnknownGasError", py.get_type::<UnknownGasError>())?;
     m.add("ScenarioError", py.get_type::<ScenarioError>())?;
     Ok(())

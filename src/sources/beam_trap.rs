@@ -108,14 +108,21 @@ impl BeamTrap {
     fn check(&self, element: &Element) -> Result<()> {
         require_positive("gas_temperature_k", self.gas_temperature_k)?;
         if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid("compensation", self.compensation, "must lie in 0..=1"));
+            return Err(Error::invalid(
+                "compensation",
+                self.compensation,
+                "must lie in 0..=1",
+            ));
         }
         let n = element.z() as usize + 1;
         if !self.loss_per_s.is_empty() && self.loss_per_s.len() != n {
             return Err(Error::invalid(
                 "loss_per_s",
                 format!("{} values", self.loss_per_s.len()),
-                &format!("give one escape rate per charge state 0..={} ({n} values)", element.z()),
+                &format!(
+                    "give one escape rate per charge state 0..={} ({n} values)",
+                    element.z()
+                ),
             ));
         }
         if let Some((q, rate)) = self.feed {
@@ -129,7 +136,8 @@ impl BeamTrap {
     pub fn recombination_rate_per_s(&self, element: &'static Element, charge: u32) -> Result<f64> {
         let ion = element.ion(charge as i64)?;
         let (n0, occupancy) = ion.valence_shell();
-        let sigma = kim_pratt_cross_section_cm2(element.z(), charge, n0, occupancy, self.beam.energy_ev);
+        let sigma =
+            kim_pratt_cross_section_cm2(element.z(), charge, n0, occupancy, self.beam.energy_ev);
         Ok(self.beam.electron_flux_per_cm2_s() * sigma)
     }
 
@@ -142,14 +150,23 @@ impl BeamTrap {
             return 0.0;
         }
         let mass_kg = element.atomic_weight_u() * ATOMIC_MASS_UNIT_KG;
-        let speed_m_s = (8.0 * self.ion_temperature_ev * ELEMENTARY_CHARGE_C / (std::f64::consts::PI * mass_kg)).sqrt();
-        let recombined_binding_ev = element.ionization_energies_ev().get(charge as usize - 1).copied().unwrap_or(0.0);
+        let speed_m_s = (8.0 * self.ion_temperature_ev * ELEMENTARY_CHARGE_C
+            / (std::f64::consts::PI * mass_kg))
+            .sqrt();
+        let recombined_binding_ev = element
+            .ionization_energies_ev()
+            .get(charge as usize - 1)
+            .copied()
+            .unwrap_or(0.0);
         self.residual_gas
             .iter()
             .filter(|g| recombined_binding_ev > g.gas.ionization_energy_ev)
             .map(|g| {
                 let n_cm3 = gas_number_density_m3(g.pressure_pa, self.gas_temperature_k) * 1e-6;
-                n_cm3 * muller_salzborn_cross_section_cm2(charge, g.gas.ionization_energy_ev) * speed_m_s * 100.0
+                n_cm3
+                    * muller_salzborn_cross_section_cm2(charge, g.gas.ionization_energy_ev)
+                    * speed_m_s
+                    * 100.0
             })
             .sum()
     }
@@ -168,7 +185,12 @@ impl BeamTrap {
         let flux = self.beam.electron_flux_per_cm2_s();
         for q in 0..z {
             if self.processes.ionization {
-                let sigma = ionization_cross_sections_cm2(element, q as i64, &[self.beam.energy_ev], self.lotz_constants)?[0];
+                let sigma = ionization_cross_sections_cm2(
+                    element,
+                    q as i64,
+                    &[self.beam.energy_ev],
+                    self.lotz_constants,
+                )?[0];
                 net.add_rate(q as usize, q as usize + 1, flux * sigma)?;
             }
         }
@@ -192,7 +214,12 @@ impl BeamTrap {
     }
 
     /// Charge-state populations at each time (rows) for atoms starting as `initial_charge`.
-    pub fn evolve(&self, element: &'static Element, times_s: &[f64], initial_charge: u32) -> Result<ndarray::Array2<f64>> {
+    pub fn evolve(
+        &self,
+        element: &'static Element,
+        times_s: &[f64],
+        initial_charge: u32,
+    ) -> Result<ndarray::Array2<f64>> {
         element.check_charge(initial_charge as i64, element.z())?;
         let net = self.network(element)?;
         let mut initial = vec![0.0; net.n_states()];
@@ -218,14 +245,28 @@ impl BeamTrap {
     /// electron space charge, shared as the fractions say (neutrals are not trapped).
     pub fn ions_per_extraction(&self, fractions: &[f64]) -> Result<Vec<f64>> {
         if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid("compensation", self.compensation, "must lie in 0..=1"));
+            return Err(Error::invalid(
+                "compensation",
+                self.compensation,
+                "must lie in 0..=1",
+            ));
         }
-        let charge_sum: f64 = fractions.iter().enumerate().map(|(q, f)| q as f64 * f).sum();
+        let charge_sum: f64 = fractions
+            .iter()
+            .enumerate()
+            .map(|(q, f)| q as f64 * f)
+            .sum();
         let capacity = self.compensation * self.electrons_in_trap();
         Ok(fractions
             .iter()
             .enumerate()
-            .map(|(q, f)| if q == 0 || charge_sum <= 0.0 { 0.0 } else { capacity * f / charge_sum })
+            .map(|(q, f)| {
+                if q == 0 || charge_sum <= 0.0 {
+                    0.0
+                } else {
+                    capacity * f / charge_sum
+                }
+            })
             .collect())
     }
 
@@ -239,10 +280,18 @@ impl BeamTrap {
     ) -> Result<EnergyTimeMap> {
         require_all_positive("energies_ev", energies_ev)?;
         if energies_ev.is_empty() || times_s.is_empty() {
-            return Err(Error::invalid("grid", "empty", "give at least one energy and one time"));
+            return Err(Error::invalid(
+                "grid",
+                "empty",
+                "give at least one energy and one time",
+            ));
         }
         if targets.is_empty() {
-            return Err(Error::invalid("charge", "none", "give at least one target charge state"));
+            return Err(Error::invalid(
+                "charge",
+                "none",
+                "give at least one target charge state",
+            ));
         }
         for q in targets {
             element.check_charge(*q as i64, element.z())?;
@@ -296,7 +345,13 @@ mod tests {
 
     fn trap(energy_ev: f64) -> BeamTrap {
         let beam = ElectronBeam::with_radius(energy_ev, 0.2, 60e-6).unwrap();
-        BeamTrap::new(beam, 0.5, &[("H2".into(), 1e-8), ("N2".into(), 2e-9)], 100.0).unwrap()
+        BeamTrap::new(
+            beam,
+            0.5,
+            &[("H2".into(), 1e-8), ("N2".into(), 2e-9)],
+            100.0,
+        )
+        .unwrap()
     }
 
     #[test]
