@@ -3,12 +3,11 @@
 //! charge exchange on the residual gas. Turns the settings into the rate network of an
 //! element (physics.md §3–§7).
 
-use rayon::prelude::*;
-
 use super::electron_beam::{electrons_in_trap, ElectronBeam};
+use super::energy_map::{energy_time_map, EnergyTimeMap};
 use crate::atoms::Element;
 use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
-use crate::error::{require_all_positive, require_non_negative, require_positive, Error, Result};
+use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::charge_exchange::{gas_number_density_m3, muller_salzborn_cross_section_cm2};
 use crate::processes::electron_impact::ionization_cross_sections_cm2;
@@ -270,7 +269,8 @@ impl BeamTrap {
             .collect())
     }
 
-    /// The fraction of the target charge states over an energy × time grid, in parallel.
+    /// The fraction of the target charge states over an electron-energy × time grid (atoms
+    /// start neutral; current density held fixed), in parallel, and its maximum.
     pub fn energy_time_map(
         &self,
         element: &'static Element,
@@ -278,64 +278,10 @@ impl BeamTrap {
         energies_ev: &[f64],
         times_s: &[f64],
     ) -> Result<EnergyTimeMap> {
-        require_all_positive("energies_ev", energies_ev)?;
-        if energies_ev.is_empty() || times_s.is_empty() {
-            return Err(Error::invalid(
-                "grid",
-                "empty",
-                "give at least one energy and one time",
-            ));
-        }
-        if targets.is_empty() {
-            return Err(Error::invalid(
-                "charge",
-                "none",
-                "give at least one target charge state",
-            ));
-        }
-        for q in targets {
-            element.check_charge(*q as i64, element.z())?;
-        }
-        let rows: Vec<Vec<f64>> = energies_ev
-            .par_iter()
-            .map(|e| {
-                let pops = self.with_energy(*e)?.evolve(element, times_s, 0)?;
-                Ok(pops
-                    .rows()
-                    .into_iter()
-                    .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
-                    .collect())
-            })
-            .collect::<Result<_>>()?;
-        let mut best = (0, 0, f64::NEG_INFINITY);
-        for (i, row) in rows.iter().enumerate() {
-            for (k, v) in row.iter().enumerate() {
-                if *v > best.2 {
-                    best = (i, k, *v);
-                }
-            }
-        }
-        Ok(EnergyTimeMap {
-            energies_ev: energies_ev.to_vec(),
-            times_s: times_s.to_vec(),
-            fraction: rows,
-            best_energy_ev: energies_ev[best.0],
-            best_time_s: times_s[best.1],
-            best_fraction: best.2,
+        energy_time_map(element, targets, "energies_ev", energies_ev, times_s, |e| {
+            self.with_energy(e)?.evolve(element, times_s, 0)
         })
     }
-}
-
-/// Target fraction over an energy × time grid, and where it is largest.
-#[derive(Clone, Debug)]
-pub struct EnergyTimeMap {
-    pub energies_ev: Vec<f64>,
-    pub times_s: Vec<f64>,
-    /// fraction[energy][time].
-    pub fraction: Vec<Vec<f64>>,
-    pub best_energy_ev: f64,
-    pub best_time_s: f64,
-    pub best_fraction: f64,
 }
 
 #[cfg(test)]

@@ -4,6 +4,7 @@
 pub mod beam_trap;
 pub mod breeding;
 pub mod electron_beam;
+pub mod energy_map;
 pub mod photon_beam;
 pub mod scenario;
 pub mod single_collision;

@@ -13,12 +13,12 @@ use ndarray::Array2;
 use rayon::prelude::*;
 
 use crate::atoms::{Element, Subshell};
-use crate::error::{require_all_positive, require_non_negative, require_positive, Error, Result};
+use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::processes::relaxation::vacancy_relaxation;
 use crate::solve::{evolve, steady_state};
-use crate::sources::beam_trap::EnergyTimeMap;
+use crate::sources::energy_map::{energy_time_map, EnergyTimeMap};
 
 /// FWHM of a Gaussian in units of its standard deviation, 2√(2 ln 2).
 pub const FWHM_PER_SIGMA: f64 = 2.354_820_045_030_949;
@@ -151,52 +151,14 @@ impl PhotonBeam {
         photon_energies_ev: &[f64],
         times_s: &[f64],
     ) -> Result<EnergyTimeMap> {
-        require_all_positive("photon_energies_ev", photon_energies_ev)?;
-        if photon_energies_ev.is_empty() || times_s.is_empty() {
-            return Err(Error::invalid(
-                "grid",
-                "empty",
-                "give at least one photon energy and one time",
-            ));
-        }
-        if targets.is_empty() {
-            return Err(Error::invalid(
-                "charge",
-                "none",
-                "give at least one target charge state",
-            ));
-        }
-        for q in targets {
-            element.check_charge(i64::from(*q), element.z())?;
-        }
-        let rows: Vec<Vec<f64>> = photon_energies_ev
-            .par_iter()
-            .map(|&e| {
-                let beam = PhotonBeam::new(e, self.flux_cm2_s, self.bandwidth_ev)?;
-                let pops = beam.evolve(element, times_s, 0)?;
-                Ok(pops
-                    .rows()
-                    .into_iter()
-                    .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
-                    .collect())
-            })
-            .collect::<Result<_>>()?;
-        let mut best = (0, 0, f64::NEG_INFINITY);
-        for (i, row) in rows.iter().enumerate() {
-            for (k, v) in row.iter().enumerate() {
-                if *v > best.2 {
-                    best = (i, k, *v);
-                }
-            }
-        }
-        Ok(EnergyTimeMap {
-            energies_ev: photon_energies_ev.to_vec(),
-            times_s: times_s.to_vec(),
-            fraction: rows,
-            best_energy_ev: photon_energies_ev[best.0],
-            best_time_s: times_s[best.1],
-            best_fraction: best.2,
-        })
+        energy_time_map(
+            element,
+            targets,
+            "photon_energies_ev",
+            photon_energies_ev,
+            times_s,
+            |e| PhotonBeam::new(e, self.flux_cm2_s, self.bandwidth_ev)?.evolve(element, times_s, 0),
+        )
     }
 
     /// Long-time charge-state fractions of atoms that start neutral. Photons only raise the

@@ -1,0 +1,77 @@
+//! The fraction of target charge states over an energy × time grid, for any source whose
+//! evolution depends on one energy (electron-beam energy, photon energy), and its maximum.
+
+use ndarray::Array2;
+use rayon::prelude::*;
+
+use crate::atoms::Element;
+use crate::error::{require_all_positive, Error, Result};
+
+/// Target fraction over an energy × time grid, and where it is largest.
+#[derive(Clone, Debug)]
+pub struct EnergyTimeMap {
+    pub energies_ev: Vec<f64>,
+    pub times_s: Vec<f64>,
+    /// fraction[energy][time].
+    pub fraction: Vec<Vec<f64>>,
+    pub best_energy_ev: f64,
+    pub best_time_s: f64,
+    pub best_fraction: f64,
+}
+
+/// Evolve at every energy in parallel (`evolve_at(energy)` returns populations [T, Z+1]
+/// at `times_s`) and sum the `targets` charge states.
+pub fn energy_time_map(
+    element: &Element,
+    targets: &[u32],
+    energies_name: &str,
+    energies_ev: &[f64],
+    times_s: &[f64],
+    evolve_at: impl Fn(f64) -> Result<Array2<f64>> + Sync,
+) -> Result<EnergyTimeMap> {
+    require_all_positive(energies_name, energies_ev)?;
+    if energies_ev.is_empty() || times_s.is_empty() {
+        return Err(Error::invalid(
+            "grid",
+            "empty",
+            &format!("give at least one value in {energies_name} and one time"),
+        ));
+    }
+    if targets.is_empty() {
+        return Err(Error::invalid(
+            "charge",
+            "none",
+            "give at least one target charge state",
+        ));
+    }
+    for q in targets {
+        element.check_charge(i64::from(*q), element.z())?;
+    }
+    let rows: Vec<Vec<f64>> = energies_ev
+        .par_iter()
+        .map(|e| {
+            let pops = evolve_at(*e)?;
+            Ok(pops
+                .rows()
+                .into_iter()
+                .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
+                .collect())
+        })
+        .collect::<Result<_>>()?;
+    let mut best = (0, 0, f64::NEG_INFINITY);
+    for (i, row) in rows.iter().enumerate() {
+        for (k, v) in row.iter().enumerate() {
+            if *v > best.2 {
+                best = (i, k, *v);
+            }
+        }
+    }
+    Ok(EnergyTimeMap {
+        energies_ev: energies_ev.to_vec(),
+        times_s: times_s.to_vec(),
+        fraction: rows,
+        best_energy_ev: energies_ev[best.0],
+        best_time_s: times_s[best.1],
+        best_fraction: best.2,
+    })
+}
