@@ -159,7 +159,7 @@ impl PyBeamTrap {
         gas_temperature_k: f64,
         compensation: f64,
         loss_per_s: Option<Vec<f64>>,
-        feed_charge: Option<u32>,
+        feed_charge: Option<i64>,
         feed_per_s: f64,
         ionization: bool,
         radiative_recombination: bool,
@@ -183,7 +183,16 @@ impl PyBeamTrap {
             }
             inner.loss_per_s = loss;
         }
-        inner.feed = feed_charge.map(|q| (q, feed_per_s));
+        if let Some(q) = feed_charge {
+            let q = u32::try_from(q).map_err(|_| {
+                Error::invalid(
+                    "feed charge",
+                    q,
+                    "must be a charge state 0..=Z of the element",
+                )
+            })?;
+            inner.feed = Some((q, feed_per_s));
+        }
         inner.processes.ionization = ionization;
         inner.processes.radiative_recombination = radiative_recombination;
         inner.processes.charge_exchange = charge_exchange;
@@ -206,9 +215,11 @@ impl PyBeamTrap {
         py: Python<'py>,
         element: &Bound<'py, PyAny>,
         times_s: PyReadonlyArray1<'py, f64>,
-        initial_charge: u32,
+        initial_charge: i64,
     ) -> PyResult<Bound<'py, PyArray2<f64>>> {
         let el = element_arg(element)?;
+        el.check_charge(initial_charge, el.z())?;
+        let initial_charge = initial_charge as u32;
         let times = vec_arg(&times_s);
         let out = guard(py, || self.inner.evolve(el, &times, initial_charge))?;
         Ok(matrix_to_py(py, out))
@@ -255,11 +266,15 @@ impl PyBeamTrap {
         &self,
         py: Python<'py>,
         element: &Bound<'py, PyAny>,
-        charges: Vec<u32>,
+        charges: Vec<i64>,
         energies_ev: PyReadonlyArray1<'py, f64>,
         times_s: PyReadonlyArray1<'py, f64>,
     ) -> PyResult<Bound<'py, PyDict>> {
         let el = element_arg(element)?;
+        for q in &charges {
+            el.check_charge(*q, el.z())?;
+        }
+        let charges: Vec<u32> = charges.iter().map(|q| *q as u32).collect();
         let (e, t) = (vec_arg(&energies_ev), vec_arg(&times_s));
         let map = guard(py, || self.inner.energy_time_map(el, &charges, &e, &t))?;
         let d = PyDict::new(py);

@@ -113,3 +113,19 @@ def test_rate_equations(matrix_and_initial, times) -> None:
     rates = np.array(flat).reshape(n, n)
     _call(cc.solve_rate_equations, rates, initial, times)
     _call(cc.steady_state_rate_equations, rates)
+
+
+@FAST
+@given(CHARGES, CHARGES, st.one_of(st.tuples(CHARGES, ANY_SCALAR), ANY_SCALAR), ELEMENTS)
+def test_trap_charges_and_feed(initial, target, feed, element) -> None:
+    beam = cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6)
+    trap = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 30.0)
+    _call(trap.evolve, element, [0.0, 1e-3], initial_charge=initial)
+    _call(trap.best_energy, element, target, [1000.0, 3000.0], [1e-3])
+    _call(trap.steady_state, element)
+    _call(trap.ions_per_extraction, [initial, target])
+
+    def with_feed():
+        cc.BeamTrap(beam, 0.5, {}, 30.0, feed=feed, loss_per_s=[1.0] * 11).evolve("Ne", [1e-3])
+
+    _call(with_feed)

@@ -48,8 +48,9 @@ def test_physical_networks_match_scipy_radau(trap, element) -> None:
     m = generator(trap.rates(element))
     y0 = np.zeros(m.shape[0])
     y0[0] = 1.0
-    sol = solve_ivp(lambda t, y: m @ y, (0.0, times[-1]), y0, method="Radau", t_eval=times,
-                    rtol=1e-10, atol=1e-14, jac=m)
+    sol = solve_ivp(
+        lambda t, y: m @ y, (0.0, times[-1]), y0, method="Radau", t_eval=times, rtol=1e-10, atol=1e-14, jac=m
+    )
     assert np.abs(trap.evolve(element, times).fractions - sol.y.T).max() < 1e-8
 
 
@@ -73,8 +74,10 @@ def test_ionization_only_matches_the_bateman_closed_form() -> None:
     ours = trap.evolve("C", [t]).fractions[0]
     for n in range(6):
         coef = np.prod(lam[:n])
-        s = sum(math.exp(-lam[i] * t) / np.prod([lam[j] - lam[i] for j in range(n + 1) if j != i])
-                for i in range(n + 1))
+        s = sum(
+            math.exp(-lam[i] * t) / np.prod([lam[j] - lam[i] for j in range(n + 1) if j != i])
+            for i in range(n + 1)
+        )
         assert ours[n] == pytest.approx(coef * s, rel=1e-8, abs=1e-14)
 
 
@@ -91,9 +94,19 @@ def test_best_energy_is_the_maximum_of_direct_runs(trap) -> None:
     energies = np.array([3000.0, 6000.0, 12000.0])
     times = np.geomspace(1e-3, 1.0, 30)
     scan = trap.best_energy("Ar", 16, energies, times)
-    direct = np.array([cc.BeamTrap(cc.ElectronBeam(e, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
-                                   0.5, {"H2": 1e-8, "N2": 1e-9}, 100.0).evolve("Ar", times).fractions[:, 16]
-                       for e in energies])
+    direct = np.array(
+        [
+            cc.BeamTrap(
+                cc.ElectronBeam(e, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
+                0.5,
+                {"H2": 1e-8, "N2": 1e-9},
+                100.0,
+            )
+            .evolve("Ar", times)
+            .fractions[:, 16]
+            for e in energies
+        ]
+    )
     np.testing.assert_allclose(scan.fraction, direct, atol=1e-12)
     assert scan.best_fraction == pytest.approx(direct.max())
     assert scan.best_energy_ev == energies[np.unravel_index(direct.argmax(), direct.shape)[0]]
@@ -116,8 +129,16 @@ def test_sweep_matches_single_runs(trap) -> None:
     times = np.geomspace(1e-4, 1.0, 20)
     out = trap.sweep(["Ne", "Ar"], [2000.0, 8000.0], times)
     assert out["Ar"].shape == (2, 20, 19)
-    single = cc.BeamTrap(cc.ElectronBeam(8000.0, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
-                         0.5, {"H2": 1e-8, "N2": 1e-9}, 100.0).evolve("Ne", times).fractions
+    single = (
+        cc.BeamTrap(
+            cc.ElectronBeam(8000.0, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
+            0.5,
+            {"H2": 1e-8, "N2": 1e-9},
+            100.0,
+        )
+        .evolve("Ne", times)
+        .fractions
+    )
     np.testing.assert_allclose(out["Ne"][1], single, atol=1e-14)
 
 
