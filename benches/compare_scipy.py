@@ -22,10 +22,11 @@ import argparse
 import platform
 import time
 
-import chargecast as cc
 import numpy as np
 from scipy.integrate import solve_ivp
 from scipy.linalg import expm
+
+import chargecast as cc
 
 
 def best_of(f, repeat: int) -> tuple[float, object]:

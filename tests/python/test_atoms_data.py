@@ -13,9 +13,10 @@ import math
 import os
 import warnings
 
-import chargecast as cc
 import numpy as np
 import pytest
+
+import chargecast as cc
 
 warnings.filterwarnings("ignore")
 

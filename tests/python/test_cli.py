@@ -9,8 +9,9 @@ import subprocess
 import sys
 from pathlib import Path
 
-import chargecast as cc
 import pytest
+
+import chargecast as cc
 
 PNG = b"\x89PNG\r\n\x1a\n"
 

@@ -3,10 +3,11 @@ interpreter and never raise anything but the documented exception classes."""
 
 from __future__ import annotations
 
-import chargecast as cc
 import numpy as np
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+
+import chargecast as cc
 
 ANY_SCALAR = st.one_of(
     st.text(max_size=12),

@@ -7,8 +7,9 @@ from memory of that paper's tables (about ±5 %). The ratios are the accuracy ta
 
 from __future__ import annotations
 
-import chargecast as cc
 import pytest
+
+import chargecast as cc
 
 # (element, energy_ev, measured cm², allowed band of Lotz/measured, why)
 CASES = [

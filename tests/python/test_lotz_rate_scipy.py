@@ -1,11 +1,12 @@
 """Lotz Maxwellian rate coefficients against scipy.integrate.quad over the binding's own
 cross section (the closed form with E1 must equal the numerical Maxwellian average)."""
 
-import chargecast as cc
 import numpy as np
 import pytest
 from scipy import constants as sc
 from scipy.integrate import quad
+
+import chargecast as cc
 
 
 def _sigma_cm2(symbol, charge, energy_ev, lotz):

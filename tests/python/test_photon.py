@@ -5,13 +5,14 @@ from __future__ import annotations
 import math
 from pathlib import Path
 
-import chargecast as cc
 import numpy as np
 import pytest
 import scipy.constants as const
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.linalg import expm
+
+import chargecast as cc
 
 RY_EV = const.physical_constants["Rydberg constant times hc in eV"][0]
 A0_CM = const.physical_constants["Bohr radius"][0] * 100.0

@@ -6,9 +6,10 @@ import json
 import re
 from pathlib import Path
 
-import chargecast as cc
 import numpy as np
 import pytest
+
+import chargecast as cc
 from chargecast.scenario import Scenario
 
 GOOD = """\

@@ -17,13 +17,14 @@ column, 1 + t * total feed for the constant feed state), which brings it to ~1e-
 t = 4 s; longer times are compared with solve_ivp(Radau) and scipy.linalg.solve instead.
 """
 
-import chargecast
 import numpy as np
 import pytest
 import scipy.integrate
 import scipy.linalg
 from hypothesis import given, settings
 from hypothesis import strategies as st
+
+import chargecast
 
 AGREEMENT = 1e-8
 QUANTUM = 2.0**-20

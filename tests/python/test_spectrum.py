@@ -6,8 +6,6 @@ import doctest
 import math
 import sys
 
-import chargecast as cc
-import chargecast.spectrum as spectrum
 import numpy as np
 import periodictable
 import pytest
@@ -16,6 +14,9 @@ from hypothesis import strategies as st
 from mendeleev import element as mendeleev_element
 from scipy import constants
 from scipy.special import erf
+
+import chargecast as cc
+import chargecast.spectrum as spectrum
 
 # Electron mass in u and the atomic mass unit in eV, CODATA 2018 (Tiesinga et al., Rev. Mod. Phys.
 # 93, 025010 (2021)), the set chargecast uses. scipy.constants carries a newer CODATA set: its values
