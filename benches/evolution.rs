@@ -9,14 +9,21 @@
 //! at ~1 s⁻¹. Recombination rises from 1e-2 to 1e3 s⁻¹ and charge exchange from 1e-1 to
 //! 1e2 s⁻¹ with the charge.
 //!
+//! The `physical` groups time the same problems on the real networks of a 20 keV, 0.5 A,
+//! 50 µm electron-beam trap with H2 and N2 residual gas (Lotz, Kim–Pratt, Müller–Salzborn),
+//! the case `benches/compare_scipy.py` runs against scipy.
+//!
 //! Run with `cargo bench --bench evolution`. For comparison, scipy's solve_ivp(BDF) needs
 //! ~0.5 s for 19 states and 1000 output times (physics.md §12, measured while planning).
 
 use std::hint::black_box;
 use std::time::Duration;
 
+use chargecast::atoms::element_by_z;
 use chargecast::network::RateNetwork;
 use chargecast::solve::{evolve, evolve_batch, steady_state};
+use chargecast::sources::beam_trap::BeamTrap;
+use chargecast::sources::electron_beam::ElectronBeam;
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
 
 fn ionization_energy_ev(z: usize, q: usize) -> f64 {
@@ -112,5 +119,54 @@ fn sweep(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, one_element, sweep);
+/// The trap of `benches/compare_scipy.py` at another beam energy.
+fn physical_trap(energy_ev: f64) -> BeamTrap {
+    let beam = ElectronBeam::with_radius(energy_ev, 0.5, 50e-6).expect("valid beam");
+    let gas = [("H2".to_string(), 1e-8), ("N2".to_string(), 1e-9)];
+    BeamTrap::new(beam, 0.5, &gas, 100.0).expect("valid trap")
+}
+
+fn physical_network(z: i64, energy_ev: f64) -> RateNetwork {
+    let element = element_by_z(z).expect("Z in the tables");
+    physical_trap(energy_ev)
+        .network(element)
+        .expect("complete chain")
+}
+
+fn physical(c: &mut Criterion) {
+    let times = geomspace(1e-4, 1.0, 1000);
+    let mut group = c.benchmark_group("physical_evolve_1000_times");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(500))
+        .measurement_time(Duration::from_secs(2));
+    for z in [18usize, 36, 54, 92] {
+        let net = physical_network(z as i64, 20_000.0);
+        let start = neutral(z);
+        group.bench_with_input(BenchmarkId::from_parameter(z), &z, |b, _| {
+            b.iter(|| evolve(black_box(&net), black_box(&start), black_box(&times)))
+        });
+    }
+    group.finish();
+
+    let times = geomspace(1e-4, 1.0, 200);
+    let energies = geomspace(500.0, 50_000.0, 100);
+    let mut problems = Vec::with_capacity(92 * 100);
+    for z in 1..=92usize {
+        for energy_ev in &energies {
+            problems.push((physical_network(z as i64, *energy_ev), neutral(z)));
+        }
+    }
+    let mut group = c.benchmark_group("physical_sweep_z1_92_x100_energies_x200_times");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(100))
+        .measurement_time(Duration::from_secs(20));
+    group.bench_function("evolve_batch", |b| {
+        b.iter(|| evolve_batch(black_box(&problems), black_box(&times)))
+    });
+    group.finish();
+}
+
+criterion_group!(benches, one_element, sweep, physical);
 criterion_main!(benches);

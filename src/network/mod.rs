@@ -152,6 +152,26 @@ impl RateNetwork {
         m
     }
 
+    /// The sub-network on `states` (ascending, in range, not empty): rates among them, their
+    /// losses and feeds. Rates from these states to others are dropped.
+    pub(crate) fn restricted(&self, states: &[usize]) -> RateNetwork {
+        let m = states.len();
+        let mut rates_per_s = vec![0.0; m * m];
+        for (i, &from) in states.iter().enumerate() {
+            for (j, &to) in states.iter().enumerate() {
+                if i != j {
+                    rates_per_s[i * m + j] = self.rates_per_s[from * self.n_states + to];
+                }
+            }
+        }
+        RateNetwork {
+            n_states: m,
+            rates_per_s,
+            loss_per_s: states.iter().map(|&q| self.loss_per_s[q]).collect(),
+            feed_per_s: states.iter().map(|&q| self.feed_per_s[q]).collect(),
+        }
+    }
+
     /// Largest upward jump `to − from` with a non-zero rate (0 if there is none).
     pub fn max_jump_up(&self) -> usize {
         self.max_jump(|from, to| to.checked_sub(from))
@@ -209,6 +229,22 @@ mod tests {
         assert_eq!(net.max_jump_up(), 3);
         assert_eq!(net.max_jump_down(), 1);
         assert_eq!(net.feed_per_s(), &[7.0, 0.0, 0.0, 0.0]);
+    }
+
+    #[test]
+    fn restriction_keeps_rates_losses_and_feeds_among_the_states() {
+        let mut net = RateNetwork::new(5).unwrap();
+        net.add_rate(1, 3, 2.0).unwrap();
+        net.add_rate(3, 1, 0.5).unwrap();
+        net.add_rate(3, 4, 9.0).unwrap();
+        net.set_loss(3, 0.25).unwrap();
+        net.set_feed(1, 4.0).unwrap();
+        let sub = net.restricted(&[1, 3]);
+        assert_eq!(sub.n_states(), 2);
+        assert_eq!((sub.rate(0, 1), sub.rate(1, 0)), (2.0, 0.5));
+        assert_eq!(sub.loss_per_s(), &[0.0, 0.25]);
+        assert_eq!(sub.feed_per_s(), &[4.0, 0.0]);
+        assert_eq!(sub.total_out_rate_per_s(1), 0.75);
     }
 
     #[test]

@@ -1,6 +1,6 @@
 //! Bindings of the engine: electron beam, beam trap, general rate equations and sweeps.
 
-use numpy::{PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2, ToPyArray};
+use numpy::{IntoPyArray, PyArray1, PyArray2, PyArray3, PyReadonlyArray1, PyReadonlyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use rayon::prelude::*;
@@ -318,7 +318,7 @@ impl PyBeamTrap {
                 cube.index_axis_mut(ndarray::Axis(0), k)
                     .assign(&results[i * e.len() + k]);
             }
-            let arr: Bound<'py, PyArray3<f64>> = cube.to_pyarray(py);
+            let arr: Bound<'py, PyArray3<f64>> = cube.into_pyarray(py);
             d.set_item(el.symbol(), arr)?;
         }
         Ok(d)

@@ -56,8 +56,8 @@ impl FluxBalance {
                     .collect(),
                 loss: network.loss_per_s().to_vec(),
                 feed,
-                flux_up: vec![0.0; n],
-                flux_down: vec![0.0; n],
+                flux_up: vec![0.0; n + 1],
+                flux_down: vec![0.0; n + 1],
             };
         }
         let mut start = Vec::with_capacity(n + 1);
@@ -95,23 +95,27 @@ impl FluxBalance {
                 flux_up,
                 flux_down,
             } => {
+                // flux_up[i + 1] = up_i·v_i and flux_down[i] = down_i·v_i, with a zero at the
+                // free end, so that every row reads its four fluxes without branches and the
+                // loop runs in vector registers.
                 let n = v.len();
+                flux_up[0] = 0.0;
+                flux_down[n] = 0.0;
                 for i in 0..n {
-                    flux_up[i] = up[i] * v[i];
+                    flux_up[i + 1] = up[i] * v[i];
                     flux_down[i] = down[i] * v[i];
                 }
+                let has_loss = loss.iter().any(|&l| l > 0.0);
                 for i in 0..n {
                     let mut sum = feed[i];
                     let mut carry = 0.0;
-                    if i > 0 {
-                        add(&mut sum, &mut carry, flux_up[i - 1]);
-                    }
-                    if i + 1 < n {
-                        add(&mut sum, &mut carry, flux_down[i + 1]);
-                    }
-                    add(&mut sum, &mut carry, -flux_up[i]);
+                    add(&mut sum, &mut carry, flux_up[i]);
+                    add(&mut sum, &mut carry, flux_down[i + 1]);
+                    add(&mut sum, &mut carry, -flux_up[i + 1]);
                     add(&mut sum, &mut carry, -flux_down[i]);
-                    add(&mut sum, &mut carry, -(loss[i] * v[i]));
+                    if has_loss {
+                        add(&mut sum, &mut carry, -(loss[i] * v[i]));
+                    }
                     out[i] = sum + carry;
                 }
             }

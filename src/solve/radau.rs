@@ -228,22 +228,13 @@ pub(crate) fn propagate_with_stats(
     if active.len() == n {
         return propagate_all(network, initial, times_s);
     }
-    let mut sub = RateNetwork::new(active.len().max(1))?;
-    for (i, &from) in active.iter().enumerate() {
-        for (j, &to) in active.iter().enumerate() {
-            if i != j {
-                sub.add_rate(i, j, network.rate(from, to))?;
-            }
-        }
-        // Transitions to states outside the set do not exist (they would be reachable);
-        // only the loss leaves.
-        sub.set_loss(i, network.loss_per_s()[from])?;
-        sub.set_feed(i, network.feed_per_s()[from])?;
-    }
     let mut out = Array2::zeros((times_s.len(), n));
     if active.is_empty() {
         return Ok((out, Stats::default()));
     }
+    // Transitions from the set to states outside it do not exist (those would be reachable),
+    // so the sub-network loses nothing but its losses.
+    let sub = network.restricted(&active);
     let sub_initial: Vec<f64> = active.iter().map(|&q| initial[q]).collect();
     let (sub_out, stats) = propagate_all(&sub, &sub_initial, times_s)?;
     for (k, row) in sub_out.outer_iter().enumerate() {

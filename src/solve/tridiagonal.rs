@@ -155,3 +155,56 @@ impl ChainPair {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::super::banded::tests::{dense_combine, sample};
+    use super::super::banded::BandPair;
+    use super::*;
+    use num_complex::Complex64;
+
+    #[test]
+    fn chain_kernel_matches_the_band_kernel_and_a_dense_solve() {
+        let weights = Poles {
+            real: 0.7,
+            complex: [Complex64::new(-1.3, 0.4), Complex64::new(0.2, 2.1)],
+        };
+        let n = 12;
+        let (m, loss) = sample(n, 1, 1);
+        let f: Vec<f64> = (0..n).map(|i| ((i * 5) % 7) as f64 - 3.0).collect();
+        let h = [2.5e-3, 1.25e-3];
+        let mut chain = ChainPair::new(&m, &loss);
+        let mut band = BandPair::new(m.clone(), &loss);
+        chain.factor(h);
+        band.factor(h);
+        let mut results = Vec::new();
+        for both in [true, false] {
+            let (mut a, mut b, mut r) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+            if both {
+                chain.combine::<0>(h, &weights, &weights, &f, [&mut a, &mut b], &mut r);
+            } else {
+                band.combine::<0>(h, &weights, &weights, &f, [&mut a, &mut b], &mut r);
+            }
+            results.push((a, b, r));
+        }
+        let expected_half = dense_combine(&m, h[1], &weights, &f);
+        let scale = expected_half.iter().map(|v| v.abs()).fold(1.0, f64::max);
+        for i in 0..n {
+            assert!((results[0].0[i] - results[1].0[i]).abs() < 1e-13 * scale);
+            assert!((results[0].1[i] - results[1].1[i]).abs() < 1e-13 * scale);
+            assert!((results[0].2[i] - results[1].2[i]).abs() < 1e-13 * scale / h[1]);
+            assert!((results[0].1[i] - expected_half[i]).abs() < 1e-12 * scale);
+        }
+        // The half-step-only pass gives the same half step.
+        let (mut unused, mut half, mut rate) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+        chain.combine::<1>(
+            h,
+            &weights,
+            &weights,
+            &f,
+            [&mut unused, &mut half],
+            &mut rate,
+        );
+        assert_eq!(half, results[0].1);
+    }
+}
