@@ -15,6 +15,21 @@ use crate::processes::lotz::LotzConstants;
 use crate::sources::breeding::{breeding_ladder, breeding_time_s, j_tau_c_cm2};
 
 /// A chemical element: ionization energies, ions, isotopes and X-ray levels.
+///
+/// Get one with ``chargecast.element(symbol, name or Z)``. ``ionization_energies_ev[q]``
+/// is the energy (eV) to go from charge q to q+1 (NIST ASD); ``ion(q)`` gives charge state q
+/// (0 = neutral … Z = bare); ``isotopes()`` lists (mass_number, mass_u, abundance or None);
+/// ``xray_levels()`` lists the neutral atom's edges (edge, subshell, binding_ev, jump_ratio,
+/// fluorescence_yield).
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> ar = cc.element("argon")
+/// >>> ar.z, ar.symbol, len(ar.ionization_energies_ev)
+/// (18, 'Ar', 18)
+/// >>> ar.configuration(8)
+/// '1s2.2s2.2p6'
 #[pyclass(name = "Element", module = "chargecast", frozen)]
 pub(crate) struct PyElement {
     pub(crate) inner: &'static Element,
@@ -58,11 +73,13 @@ impl PyElement {
     fn is_complete(&self) -> bool {
         self.inner.is_complete()
     }
+    /// The ion of charge ``charge`` (0 = neutral … Z = bare).
     fn ion(&self, charge: &Bound<'_, PyAny>) -> PyResult<PyIon> {
         Ok(PyIon {
             inner: self.inner.ion(int_arg("charge", charge)?)?,
         })
     }
+    /// Ground configuration of charge ``charge``, cores written out (e.g. ``'1s2.2s2.2p6'``).
     fn configuration(&self, charge: &Bound<'_, PyAny>) -> PyResult<String> {
         Ok(self
             .inner
@@ -109,6 +126,20 @@ impl PyElement {
 }
 
 /// One charge state of an element.
+///
+/// ``subshells()`` lists (label, occupancy, binding_ev) of every occupied subshell, inner
+/// first, with binding energies (eV) from the ion model; ``threshold_ev`` is the energy to
+/// make this ion from the neutral atom; ``ionized_subshell`` is the subshell that loses the
+/// next electron.
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> ion = cc.element("Ar").ion(8)
+/// >>> ion.ionized_subshell, round(ion.ionization_energy_ev, 2)
+/// ('2p', 422.6)
+/// >>> [label for label, occupancy, binding_ev in ion.subshells()]
+/// ['1s', '2s', '2p']
 #[pyclass(name = "Ion", module = "chargecast", frozen)]
 pub(crate) struct PyIon {
     inner: Ion,

@@ -17,7 +17,23 @@ use crate::sources::electron_beam::{
     space_charge_depression_v, ElectronBeam,
 };
 
-/// A uniform electron beam (energy, current and radius or current density or field).
+/// A uniform electron beam.
+///
+/// Give the electron energy (eV), the current (A) and exactly one of ``radius_m``,
+/// ``current_density_a_cm2`` or ``magnetic_field_t`` (the beam then has its Brillouin radius;
+/// with ``cathode_radius_m`` and ``cathode_temperature_k`` (K), and optionally
+/// ``cathode_field_t``, its Herrmann radius enclosing 80 % of the current).
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> beam = cc.ElectronBeam(energy_ev=10000.0, current_a=0.5, radius_m=50e-6)
+/// >>> round(beam.current_density_a_cm2)
+/// 6366
+/// >>> round(beam.speed_m_s / 299792458.0, 4)
+/// 0.195
+/// >>> round(beam.space_charge_depression_v(5e-3))  # volts, axis to wall
+/// 785
 #[pyclass(name = "ElectronBeam", module = "chargecast", frozen)]
 #[derive(Clone)]
 pub(crate) struct PyElectronBeam {
