@@ -130,18 +130,10 @@ pub fn clean_charge_states(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::spectrum::lines::test_list as list;
     use crate::atoms::element;
     use crate::spectrum::PeakShape;
 
-    fn list(lines: &[(i64, i64, i64, f64)]) -> LineList {
-        LineList::new(
-            lines
-                .iter()
-                .map(|&(z, a, q, i)| Line::new(z, a, q, i, false).unwrap())
-                .collect(),
-        )
-        .unwrap()
-    }
 
     #[test]
     fn a_charge_state_shared_with_residual_gas_loses_to_a_clean_one() {

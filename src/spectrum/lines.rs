@@ -208,6 +208,18 @@ pub fn aq_lines(species: &[SpeciesInput]) -> Result<LineList> {
     LineList::new(lines)
 }
 
+/// A line list from (Z, A, charge, intensity) tuples, for tests.
+#[cfg(test)]
+pub(crate) fn test_list(lines: &[(i64, i64, i64, f64)]) -> LineList {
+    LineList::new(
+        lines
+            .iter()
+            .map(|&(z, a, q, i)| Line::new(z, a, q, i, false).unwrap())
+            .collect(),
+    )
+    .unwrap()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

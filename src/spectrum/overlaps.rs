@@ -188,17 +188,9 @@ pub(crate) fn target_line<'a>(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::spectrum::lines::test_list as list;
     use crate::atoms::element;
 
-    fn list(lines: &[(i64, i64, i64, f64)]) -> LineList {
-        LineList::new(
-            lines
-                .iter()
-                .map(|&(z, a, q, i)| Line::new(z, a, q, i, false).unwrap())
-                .collect(),
-        )
-        .unwrap()
-    }
 
     #[test]
     fn gaussian_contamination_is_the_ratio_of_window_areas() {
