@@ -105,3 +105,28 @@ pub(crate) fn opt_float_arg(name: &str, value: Option<&Bound<'_, PyAny>>) -> Res
         _ => Ok(None),
     }
 }
+
+/// Target charges from Python, each checked against the element (0…Z).
+pub(crate) fn charges_arg(element: &Element, charges: &[i64]) -> Result<Vec<u32>> {
+    charges
+        .iter()
+        .map(|q| element.check_charge(*q, element.z()).map(|_| *q as u32))
+        .collect()
+}
+
+/// An energy × time map as a dict: `fraction` [energies, times] and the best point.
+pub(crate) fn energy_map_to_py<'py>(
+    py: Python<'py>,
+    map: crate::sources::energy_map::EnergyTimeMap,
+) -> PyResult<Bound<'py, pyo3::types::PyDict>> {
+    let (rows, cols) = (map.fraction.len(), map.times_s.len());
+    let flat: Vec<f64> = map.fraction.into_iter().flatten().collect();
+    let arr = ndarray::Array2::from_shape_vec((rows, cols), flat)
+        .map_err(|e| Error::invalid("grid", e, "internal shape error"))?;
+    let d = pyo3::types::PyDict::new(py);
+    d.set_item("fraction", matrix_to_py(py, arr))?;
+    d.set_item("best_energy_ev", map.best_energy_ev)?;
+    d.set_item("best_time_s", map.best_time_s)?;
+    d.set_item("best_fraction", map.best_fraction)?;
+    Ok(d)
+}

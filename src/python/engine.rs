@@ -5,7 +5,7 @@ use pyo3::prelude::*;
 use pyo3::types::PyDict;
 use rayon::prelude::*;
 
-use super::convert::{float_arg, matrix_to_py, opt_float_arg};
+use super::convert::{charges_arg, energy_map_to_py, float_arg, matrix_to_py, opt_float_arg};
 use super::{element_arg, guard, to_py, vec_arg};
 use crate::atoms::Element;
 use crate::error::{Error, Result};
@@ -287,23 +287,10 @@ impl PyBeamTrap {
         times_s: PyReadonlyArray1<'py, f64>,
     ) -> PyResult<Bound<'py, PyDict>> {
         let el = element_arg(element)?;
-        for q in &charges {
-            el.check_charge(*q, el.z())?;
-        }
-        let charges: Vec<u32> = charges.iter().map(|q| *q as u32).collect();
+        let charges = charges_arg(el, &charges)?;
         let (e, t) = (vec_arg(&energies_ev), vec_arg(&times_s));
         let map = guard(py, || self.inner.energy_time_map(el, &charges, &e, &t))?;
-        let d = PyDict::new(py);
-        let rows = map.fraction.len();
-        let cols = map.times_s.len();
-        let flat: Vec<f64> = map.fraction.into_iter().flatten().collect();
-        let arr = ndarray::Array2::from_shape_vec((rows, cols), flat)
-            .map_err(|e| Error::invalid("grid", e, "internal shape error"))?;
-        d.set_item("fraction", matrix_to_py(py, arr))?;
-        d.set_item("best_energy_ev", map.best_energy_ev)?;
-        d.set_item("best_time_s", map.best_time_s)?;
-        d.set_item("best_fraction", map.best_fraction)?;
-        Ok(d)
+        energy_map_to_py(py, map)
     }
 
     /// Evolutions of several elements over an energy grid, in parallel:

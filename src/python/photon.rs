@@ -5,9 +5,10 @@ use numpy::{PyArray1, PyArray2, PyReadonlyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
+use super::convert::{charges_arg, energy_map_to_py};
 use super::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 use crate::atoms::{Element, Subshell};
-use crate::error::{Error, Result};
+use crate::error::Result;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::processes::relaxation::{max_extra_electrons, vacancy_relaxation};
 use crate::sources::photon_beam::{photon_selectivity, photon_thresholds, PhotonBeam};
@@ -183,7 +184,7 @@ fn _photon_steady_state<'py>(
 fn _photon_energy_time_map<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
-    charges: Vec<u32>,
+    charges: Vec<i64>,
     flux_cm2_s: f64,
     bandwidth_ev: f64,
     photon_energies_ev: PyReadonlyArray1<'py, f64>,
@@ -193,18 +194,9 @@ fn _photon_energy_time_map<'py>(
     let (e, t) = (vec_arg(&photon_energies_ev), vec_arg(&times_s));
     // The photon energy is replaced point by point; the first one validates flux and bandwidth.
     let beam = PhotonBeam::new(e.first().copied().unwrap_or(1.0), flux_cm2_s, bandwidth_ev)?;
+    let charges = charges_arg(el, &charges)?;
     let map = guard(py, || beam.energy_time_map(el, &charges, &e, &t))?;
-    let rows = map.fraction.len();
-    let cols = map.times_s.len();
-    let flat: Vec<f64> = map.fraction.into_iter().flatten().collect();
-    let arr = ndarray::Array2::from_shape_vec((rows, cols), flat)
-        .map_err(|e| Error::invalid("grid", e, "internal shape error"))?;
-    let d = PyDict::new(py);
-    d.set_item("fraction", matrix_to_py(py, arr))?;
-    d.set_item("best_energy_ev", map.best_energy_ev)?;
-    d.set_item("best_time_s", map.best_time_s)?;
-    d.set_item("best_fraction", map.best_fraction)?;
-    Ok(d)
+    energy_map_to_py(py, map)
 }
 
 /// Validate a single-collision source; raises InvalidParameterError.
