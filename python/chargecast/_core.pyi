@@ -152,6 +152,7 @@ class _BeamTrap:
         ionization: bool,
         radiative_recombination: bool,
         charge_exchange: bool,
+        photon_beam: tuple[float, float, float] | None = None,
     ) -> _BeamTrap: ...
     @property
     def beam(self) -> ElectronBeam: ...

@@ -56,6 +56,9 @@ class BeamTrap:
         Continuous injection of that charge state (population units per second).
     processes : sequence of str, optional
         Subset of ``("ionization", "radiative_recombination", "charge_exchange")``.
+    photon_beam : PhotonBeam, optional
+        A photon beam crossing the trapped ions: its photoionization and relaxation jumps
+        are added to the network (e.g. a synchrotron beam through the trap).
 
     Examples
     --------
@@ -82,6 +85,7 @@ class BeamTrap:
         loss_per_s: Any = None,
         feed: Optional[tuple[int, float]] = None,
         processes: Sequence[str] = _ALL,
+        photon_beam: Any = None,
     ) -> None:
         if not isinstance(beam, _core.ElectronBeam):
             raise InvalidParameterError(f"beam must be a chargecast.ElectronBeam, got {type(beam).__name__}")
@@ -102,6 +106,19 @@ class BeamTrap:
             feed_charge, feed_rate = as_int("feed charge", feed[0]), as_float("feed rate_per_s", feed[1])
             if feed_charge < 0:
                 raise InvalidParameterError(f"feed charge {feed_charge} must be >= 0")
+        photons = None
+        if photon_beam is not None:
+            try:
+                photons = (
+                    float(photon_beam.photon_energy_ev),
+                    float(photon_beam.flux_cm2_s),
+                    float(photon_beam.bandwidth_ev),
+                )
+            except (AttributeError, TypeError, ValueError):
+                raise InvalidParameterError(
+                    f"photon_beam must be a chargecast.PhotonBeam, got {type(photon_beam).__name__}"
+                ) from None
+        self.photon_beam = photon_beam
         self.residual_gas_pa = dict(gas)
         self.ion_temperature_ev = ion_temperature_ev
         self._trap = _core._BeamTrap(
@@ -117,6 +134,7 @@ class BeamTrap:
             "ionization" in processes,
             "radiative_recombination" in processes,
             "charge_exchange" in processes,
+            photons,
         )
         self.length_m = float(length_m)
         self.compensation = float(compensation)

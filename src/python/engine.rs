@@ -16,6 +16,7 @@ use crate::sources::electron_beam::{
     brillouin_radius_m, effective_energy_ev, electron_speed_m_s, electrons_in_trap,
     space_charge_depression_v, ElectronBeam,
 };
+use crate::sources::photon_beam::PhotonBeam;
 
 /// A uniform electron beam.
 ///
@@ -165,7 +166,8 @@ pub(crate) struct PyBeamTrap {
 impl PyBeamTrap {
     #[new]
     #[pyo3(signature = (beam, length_m, residual_gas_pa, ion_temperature_ev, gas_temperature_k, compensation,
-                        loss_per_s, feed_charge, feed_per_s, ionization, radiative_recombination, charge_exchange))]
+                        loss_per_s, feed_charge, feed_per_s, ionization, radiative_recombination, charge_exchange,
+                        photon_beam=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: PyRef<'_, PyElectronBeam>,
@@ -180,6 +182,7 @@ impl PyBeamTrap {
         ionization: bool,
         radiative_recombination: bool,
         charge_exchange: bool,
+        photon_beam: Option<(f64, f64, f64)>,
     ) -> PyResult<Self> {
         let mut inner = BeamTrap::new(
             beam.inner.clone(),
@@ -212,6 +215,9 @@ impl PyBeamTrap {
         inner.processes.ionization = ionization;
         inner.processes.radiative_recombination = radiative_recombination;
         inner.processes.charge_exchange = charge_exchange;
+        if let Some((energy_ev, flux_cm2_s, bandwidth_ev)) = photon_beam {
+            inner.photon_beam = Some(PhotonBeam::new(energy_ev, flux_cm2_s, bandwidth_ev)?);
+        }
         Ok(PyBeamTrap { inner })
     }
 

@@ -5,6 +5,7 @@
 
 use super::electron_beam::{electrons_in_trap, ElectronBeam};
 use super::energy_map::{energy_time_map, EnergyTimeMap};
+use super::photon_beam::{photon_network, PhotonBeam};
 use crate::atoms::Element;
 use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
 use crate::error::{require_non_negative, require_positive, Error, Result};
@@ -59,6 +60,9 @@ pub struct BeamTrap {
     pub loss_per_s: Vec<f64>,
     /// Continuous injection (charge, particles per s in units of the initial population).
     pub feed: Option<(u32, f64)>,
+    /// A photon beam crossing the trapped ions (photoionization and relaxation jumps are
+    /// added to the network), e.g. a synchrotron or free-electron-laser beam.
+    pub photon_beam: Option<PhotonBeam>,
 }
 
 impl BeamTrap {
@@ -92,6 +96,7 @@ impl BeamTrap {
             processes: Processes::default(),
             loss_per_s: Vec::new(),
             feed: None,
+            photon_beam: None,
         })
     }
 
@@ -209,7 +214,10 @@ impl BeamTrap {
         if let Some((q, rate)) = self.feed {
             net.set_feed(q as usize, rate)?;
         }
-        Ok(net)
+        match &self.photon_beam {
+            Some(photons) => photon_network(element, photons, Some(&net)),
+            None => Ok(net),
+        }
     }
 
     /// Charge-state populations at each time (rows) for atoms starting as `initial_charge`.
@@ -331,6 +339,25 @@ mod tests {
         let n = t.ions_per_extraction(&fr).unwrap();
         let total_charge: f64 = n.iter().enumerate().map(|(q, v)| q as f64 * v).sum();
         assert!((total_charge / (0.5 * t.electrons_in_trap()) - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_photon_beam_adds_its_jump_rates_to_the_trap() {
+        let ne = element("Ne").unwrap();
+        let mut t = trap(3000.0);
+        let without = t.network(ne).unwrap();
+        let photons = PhotonBeam::new(1500.0, 1e22, 0.0).unwrap();
+        let alone = photon_network(ne, &photons, None).unwrap();
+        t.photon_beam = Some(photons);
+        let with = t.network(ne).unwrap();
+        for from in 0..11 {
+            for to in 0..11 {
+                if from != to {
+                    let sum = without.rate(from, to) + alone.rate(from, to);
+                    assert!((with.rate(from, to) - sum).abs() <= 1e-12 * sum.max(1e-300));
+                }
+            }
+        }
     }
 
     #[test]

@@ -195,3 +195,17 @@ def test_bad_beams_and_times() -> None:
         trap.evolve("Ar", [-1.0])
     with pytest.raises(cc.NoDataError):
         trap.evolve("Ds", [0.1])
+
+
+def test_a_photon_beam_through_the_trap_adds_its_rates() -> None:
+    # The combined network is the sum of the trap's and the photon beam's rate matrices.
+    beam = cc.ElectronBeam(3000.0, 0.2, radius_m=60e-6)
+    photons = cc.PhotonBeam(1500.0, 1e22)
+    plain = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 50.0)
+    crossed = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 50.0, photon_beam=photons)
+    np.testing.assert_allclose(crossed.rates("Ne"), plain.rates("Ne") + photons.rates("Ne"), rtol=1e-12)
+    # Photons add ionization on top of the electron beam's against the same recombination
+    # and charge exchange, so the equilibrium bare fraction grows.
+    assert crossed.steady_state("Ne")[10] > plain.steady_state("Ne")[10]
+    with pytest.raises(cc.InvalidParameterError, match="PhotonBeam"):
+        cc.BeamTrap(beam, 0.5, {}, 50.0, photon_beam="bright")
