@@ -130,10 +130,9 @@ pub fn clean_charge_states(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::spectrum::lines::test_list as list;
     use crate::atoms::element;
+    use crate::spectrum::lines::test_list as list;
     use crate::spectrum::PeakShape;
-
 
     #[test]
     fn a_charge_state_shared_with_residual_gas_loses_to_a_clean_one() {

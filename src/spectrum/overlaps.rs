@@ -188,9 +188,8 @@ pub(crate) fn target_line<'a>(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::spectrum::lines::test_list as list;
     use crate::atoms::element;
-
+    use crate::spectrum::lines::test_list as list;
 
     #[test]
     fn gaussian_contamination_is_the_ratio_of_window_areas() {
