@@ -153,6 +153,7 @@ class _BeamTrap:
         radiative_recombination: bool,
         charge_exchange: bool,
         photon_beam: tuple[float, float, float] | None = None,
+        multiple_ionization: bool = False,
     ) -> _BeamTrap: ...
     @property
     def beam(self) -> ElectronBeam: ...

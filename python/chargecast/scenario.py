@@ -31,8 +31,9 @@ Source: exactly one of
     ``cathode_temperature_k``, optional ``cathode_field_t`` = 0, the Herrmann radius);
     ``ion_temperature_ev`` (50), ``gas_temperature_k`` (300), ``compensation`` (0.5,
     fraction 0…1 of the electron space charge filled by ions: sets the ions per
-    extraction), ``processes`` (all of ``"ionization"``, ``"radiative_recombination"``,
-    ``"charge_exchange"``).
+    extraction), ``processes`` (default ``"ionization"``, ``"radiative_recombination"``,
+    ``"charge_exchange"``; add ``"multiple_ionization"`` for Auger cascades after inner-shell
+    ionization and direct double ionization).
 
     ``[photon_beam]`` -- ``photon_energy_ev``, ``flux_cm2_s`` (photons cm⁻² s⁻¹),
     ``bandwidth_ev`` (optional).

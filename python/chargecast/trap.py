@@ -55,7 +55,11 @@ class BeamTrap:
     feed : tuple (charge, rate_per_s), optional
         Continuous injection of that charge state (population units per second).
     processes : sequence of str, optional
-        Subset of ``("ionization", "radiative_recombination", "charge_exchange")``.
+        Subset of ``("ionization", "radiative_recombination", "charge_exchange",
+        "multiple_ionization")``; the first three by default. ``"multiple_ionization"`` lets
+        every subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
+        double ionization (q → q+2); slower for heavy elements (the cascades are computed
+        once per ion and cached).
     photon_beam : PhotonBeam, optional
         A photon beam crossing the trapped ions: its photoionization and relaxation jumps
         are added to the network (e.g. a synchrotron beam through the trap).
@@ -71,7 +75,8 @@ class BeamTrap:
     18
     """
 
-    _ALL = ("ionization", "radiative_recombination", "charge_exchange")
+    _DEFAULT = ("ionization", "radiative_recombination", "charge_exchange")
+    _ALL = (*_DEFAULT, "multiple_ionization")
 
     def __init__(
         self,
@@ -84,7 +89,7 @@ class BeamTrap:
         compensation: float = 0.5,
         loss_per_s: Any = None,
         feed: Optional[tuple[int, float]] = None,
-        processes: Sequence[str] = _ALL,
+        processes: Sequence[str] = _DEFAULT,
         photon_beam: Any = None,
     ) -> None:
         if not isinstance(beam, _core.ElectronBeam):
@@ -135,6 +140,7 @@ class BeamTrap:
             "radiative_recombination" in processes,
             "charge_exchange" in processes,
             photons,
+            "multiple_ionization" in processes,
         )
         self.length_m = float(length_m)
         self.compensation = float(compensation)

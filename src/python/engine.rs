@@ -167,7 +167,7 @@ impl PyBeamTrap {
     #[new]
     #[pyo3(signature = (beam, length_m, residual_gas_pa, ion_temperature_ev, gas_temperature_k, compensation,
                         loss_per_s, feed_charge, feed_per_s, ionization, radiative_recombination, charge_exchange,
-                        photon_beam=None))]
+                        photon_beam=None, multiple_ionization=false))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: PyRef<'_, PyElectronBeam>,
@@ -183,6 +183,7 @@ impl PyBeamTrap {
         radiative_recombination: bool,
         charge_exchange: bool,
         photon_beam: Option<(f64, f64, f64)>,
+        multiple_ionization: bool,
     ) -> PyResult<Self> {
         let mut inner = BeamTrap::new(
             beam.inner.clone(),
@@ -213,6 +214,7 @@ impl PyBeamTrap {
             inner.feed = Some((q, feed_per_s));
         }
         inner.processes.ionization = ionization;
+        inner.processes.multiple_ionization = multiple_ionization;
         inner.processes.radiative_recombination = radiative_recombination;
         inner.processes.charge_exchange = charge_exchange;
         if let Some((energy_ev, flux_cm2_s, bandwidth_ev)) = photon_beam {

@@ -11,10 +11,13 @@ use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
 use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::charge_exchange::{gas_number_density_m3, muller_salzborn_cross_section_cm2};
-use crate::processes::electron_impact::ionization_cross_sections_cm2;
+use crate::processes::double_ionization::direct_double_ionization_cm2;
+use crate::processes::electron_impact::{ion_lotz_shells, ionization_cross_sections_cm2};
 use crate::processes::gases::{gas, Gas};
+use crate::processes::lotz::lotz_subshell_cross_section_cm2;
 use crate::processes::lotz::LotzConstants;
 use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
+use crate::processes::relaxation::vacancy_relaxation;
 use crate::solve::{evolve, steady_state};
 
 /// One residual-gas component.
@@ -24,10 +27,14 @@ pub struct GasComponent {
     pub pressure_pa: f64,
 }
 
-/// Which processes the network includes (all on by default).
+/// Which processes the network includes. By default: single ionization (Lotz),
+/// radiative recombination and charge exchange; `multiple_ionization` (off by default)
+/// lets each subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
+/// double ionization (q → q+2), physics.md §9–§10.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Processes {
     pub ionization: bool,
+    pub multiple_ionization: bool,
     pub radiative_recombination: bool,
     pub charge_exchange: bool,
 }
@@ -36,6 +43,7 @@ impl Default for Processes {
     fn default() -> Self {
         Processes {
             ionization: true,
+            multiple_ionization: false,
             radiative_recombination: true,
             charge_exchange: true,
         }
@@ -136,6 +144,44 @@ impl BeamTrap {
         Ok(())
     }
 
+    /// Cross sections (cm²) of ion `charge` → each higher charge in one electron collision:
+    /// Lotz ionization of every subshell followed by its vacancy cascade, plus direct double
+    /// ionization. Their sum exceeds the single-ionization Lotz total only by the direct
+    /// double term.
+    pub fn impact_jumps_cm2(
+        &self,
+        element: &'static Element,
+        charge: u32,
+    ) -> Result<Vec<(u32, f64)>> {
+        let ion = element.ion(i64::from(charge))?;
+        let energy_ev = self.beam.energy_ev;
+        let mut per_charge = vec![0.0; (element.z() - charge) as usize + 1];
+        for (state, lotz) in ion
+            .subshells()
+            .iter()
+            .zip(ion_lotz_shells(&ion, self.lotz_constants))
+        {
+            let sigma = lotz_subshell_cross_section_cm2(&lotz, energy_ev);
+            if sigma.is_nan() || sigma <= 0.0 {
+                continue;
+            }
+            for (k, p) in vacancy_relaxation(&ion, state.subshell)?.iter().enumerate() {
+                if let Some(slot) = per_charge.get_mut(1 + k) {
+                    *slot += sigma * p;
+                }
+            }
+        }
+        if let Some(slot) = per_charge.get_mut(2) {
+            *slot += direct_double_ionization_cm2(&ion, energy_ev);
+        }
+        Ok(per_charge
+            .into_iter()
+            .enumerate()
+            .filter(|(_, s)| *s > 0.0)
+            .map(|(k, s)| (charge + k as u32, s))
+            .collect())
+    }
+
     /// Radiative-recombination rate of charge q → q−1 (s⁻¹): (j/e)·σ_RR (Kim & Pratt 1983).
     pub fn recombination_rate_per_s(&self, element: &'static Element, charge: u32) -> Result<f64> {
         let ion = element.ion(charge as i64)?;
@@ -188,7 +234,14 @@ impl BeamTrap {
         let mut net = RateNetwork::new(z as usize + 1)?;
         let flux = self.beam.electron_flux_per_cm2_s();
         for q in 0..z {
-            if self.processes.ionization {
+            if !self.processes.ionization {
+                continue;
+            }
+            if self.processes.multiple_ionization {
+                for (to, sigma) in self.impact_jumps_cm2(element, q)? {
+                    net.add_rate(q as usize, to as usize, flux * sigma)?;
+                }
+            } else {
                 let sigma = ionization_cross_sections_cm2(
                     element,
                     q as i64,
@@ -358,6 +411,28 @@ mod tests {
                 }
             }
         }
+    }
+
+    #[test]
+    fn multiple_ionization_spreads_the_lotz_total_and_adds_direct_double() {
+        let kr = element("Kr").unwrap();
+        let mut t = trap(20_000.0);
+        t.processes.multiple_ionization = true;
+        for q in [0u32, 5, 20, 33] {
+            let jumps = t.impact_jumps_cm2(kr, q).unwrap();
+            let total: f64 = jumps.iter().map(|(_, s)| s).sum();
+            let single = ionization_cross_sections_cm2(kr, q as i64, &[20_000.0], None).unwrap()[0];
+            let ion = kr.ion(q as i64).unwrap();
+            let double = direct_double_ionization_cm2(&ion, 20_000.0);
+            assert!(
+                (total - single - double).abs() <= 1e-12 * total,
+                "{q}: {total} vs {single} + {double}"
+            );
+            assert!(jumps.iter().all(|(to, _)| *to > q && *to <= 36));
+        }
+        // A K-shell hole in neutral krypton relaxes to several charges: jumps beyond q+2 exist.
+        let net = t.network(kr).unwrap();
+        assert!(net.max_jump_up() > 2);
     }
 
     #[test]

@@ -240,7 +240,15 @@ pub struct Scenario {
 }
 
 /// Processes a trap can include.
-pub const PROCESSES: [&str; 3] = ["ionization", "radiative_recombination", "charge_exchange"];
+pub const PROCESSES: [&str; 4] = [
+    "ionization",
+    "radiative_recombination",
+    "charge_exchange",
+    "multiple_ionization",
+];
+/// The processes a trap includes when the scenario does not list them.
+pub const DEFAULT_PROCESSES: [&str; 3] =
+    ["ionization", "radiative_recombination", "charge_exchange"];
 /// Peak shapes of the separator.
 pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
 const MAX_POINTS: i64 = 100_000;
@@ -762,7 +770,7 @@ impl Checker<'_, '_> {
             ));
         }
         let processes = match t.processes {
-            None => PROCESSES.iter().map(|p| p.to_string()).collect(),
+            None => DEFAULT_PROCESSES.iter().map(|p| p.to_string()).collect(),
             Some(list) => {
                 for (i, p) in list.iter().enumerate() {
                     if !PROCESSES.contains(&p.as_str()) {

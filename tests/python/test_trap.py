@@ -209,3 +209,30 @@ def test_a_photon_beam_through_the_trap_adds_its_rates() -> None:
     assert crossed.steady_state("Ne")[10] > plain.steady_state("Ne")[10]
     with pytest.raises(cc.InvalidParameterError, match="PhotonBeam"):
         cc.BeamTrap(beam, 0.5, {}, 50.0, photon_beam="bright")
+
+
+def test_multiple_ionization_network_matches_scipy_expm() -> None:
+    # Auger cascades make jumps q -> q+1+k; the solver's band path against scipy.linalg.expm.
+    beam = cc.ElectronBeam(energy_ev=20000.0, current_a=0.5, radius_m=50e-6)
+    processes = ("ionization", "radiative_recombination", "charge_exchange", "multiple_ionization")
+    trap = cc.BeamTrap(beam, 0.5, {"H2": 1e-8}, 100.0, processes=processes)
+    rates = trap.rates("Kr")
+    assert np.count_nonzero(np.triu(rates, 3)) > 0  # jumps of three and more charges exist
+    times = np.geomspace(1e-5, 1.0, 12)
+    m = generator(rates)
+    y0 = np.zeros(m.shape[0])
+    y0[0] = 1.0
+    exact = np.array([expm(m * t) @ y0 for t in times])
+    assert np.abs(trap.evolve("Kr", times).fractions - exact).max() < 1e-8
+
+
+def test_multiple_ionization_keeps_the_lotz_total_and_adds_double() -> None:
+    # Sum over final charges of the cascade-resolved rates = single-ionization Lotz rate
+    # (each subshell ionized once) + direct double ionization (physics sheet §10).
+    beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.2, radius_m=60e-6)
+    single = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization",)).rates("Ar")
+    multi = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization", "multiple_ionization")).rates("Ar")
+    out_single = np.triu(single, 1).sum(axis=1)
+    out_multi = np.triu(multi, 1).sum(axis=1)
+    assert np.all(out_multi >= out_single * (1 - 1e-12))
+    assert np.all(out_multi[:16] <= out_single[:16] * 1.2)  # double ionization is a small addition
