@@ -177,6 +177,9 @@ class _BeamTrap:
         self, elements: list[str | int], energies_ev: NDArray[np.float64], times_s: NDArray[np.float64]
     ) -> dict[str, NDArray[np.float64]]: ...
 
+def _evolve_batch(
+    traps: list[_BeamTrap], elements: list[str | int], times_s: NDArray[np.float64]
+) -> list[NDArray[np.float64]]: ...
 def solve_rate_equations(
     rates_per_s: NDArray[np.float64],
     initial: NDArray[np.float64],

@@ -336,6 +336,38 @@ impl PyBeamTrap {
     }
 }
 
+/// Evolutions of many independent (trap, element) cases at the same output times, in
+/// parallel with the GIL released; atoms start neutral.
+#[pyfunction]
+fn _evolve_batch<'py>(
+    py: Python<'py>,
+    traps: Vec<PyRef<'py, PyBeamTrap>>,
+    elements: Vec<Bound<'py, PyAny>>,
+    times_s: PyReadonlyArray1<'py, f64>,
+) -> PyResult<Vec<Bound<'py, PyArray2<f64>>>> {
+    if traps.len() != elements.len() {
+        return Err(Error::invalid(
+            "cases",
+            format!("{} traps and {} elements", traps.len(), elements.len()),
+            "give one element per trap",
+        )
+        .into());
+    }
+    let cases: Vec<(BeamTrap, &'static Element)> = traps
+        .iter()
+        .zip(&elements)
+        .map(|(t, e)| Ok((t.inner.clone(), element_arg(e)?)))
+        .collect::<Result<_>>()?;
+    let times = vec_arg(&times_s);
+    let results = guard(py, || {
+        cases
+            .par_iter()
+            .map(|(trap, el)| trap.evolve(el, &times, 0))
+            .collect::<Result<Vec<_>>>()
+    })?;
+    Ok(results.into_iter().map(|a| matrix_to_py(py, a)).collect())
+}
+
 fn rate_matrix(net: &RateNetwork) -> ndarray::Array2<f64> {
     let n = net.n_states();
     ndarray::Array2::from_shape_fn((n, n), |(i, j)| if i == j { 0.0 } else { net.rate(i, j) })
@@ -482,6 +514,7 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyElectronBeam>()?;
     m.add_class::<PyBeamTrap>()?;
     m.add_function(wrap_pyfunction!(solve_rate_equations, m)?)?;
+    m.add_function(wrap_pyfunction!(_evolve_batch, m)?)?;
     m.add_function(wrap_pyfunction!(steady_state_rate_equations, m)?)?;
     m.add_function(wrap_pyfunction!(_electron_speed_m_s, m)?)?;
     m.add_function(wrap_pyfunction!(_brillouin_radius_m, m)?)?;

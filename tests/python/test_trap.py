@@ -236,3 +236,17 @@ def test_multiple_ionization_keeps_the_lotz_total_and_adds_double() -> None:
     out_multi = np.triu(multi, 1).sum(axis=1)
     assert np.all(out_multi >= out_single * (1 - 1e-12))
     assert np.all(out_multi[:16] <= out_single[:16] * 1.2)  # double ionization is a small addition
+
+
+def test_evolve_batch_matches_single_runs_and_checks_its_cases() -> None:
+    beam_a = cc.ElectronBeam(4000.0, 0.1, radius_m=60e-6)
+    beam_b = cc.ElectronBeam(9000.0, 0.3, radius_m=40e-6)
+    traps = [cc.BeamTrap(beam_a, 0.4, {"H2": 1e-9}), cc.BeamTrap(beam_b, 0.6, {"N2": 5e-10}, 80.0)]
+    times = np.geomspace(1e-4, 1.0, 25)
+    evos = cc.evolve_batch([(traps[0], "Ne"), (traps[1], "Kr")], times)
+    np.testing.assert_array_equal(evos[0].fractions, traps[0].evolve("Ne", times).fractions)
+    np.testing.assert_array_equal(evos[1].fractions, traps[1].evolve("Kr", times).fractions)
+    with pytest.raises(cc.InvalidParameterError, match="tuple"):
+        cc.evolve_batch([traps[0]], times)
+    with pytest.raises(cc.UnknownElementError):
+        cc.evolve_batch([(traps[0], "Xx")], times)
