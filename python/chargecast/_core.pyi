@@ -89,14 +89,6 @@ def _breeding_time_s(
     b: float | None = None,
     c: float | None = None,
 ) -> NDArray[np.float64]: ...
-def _j_tau_c_cm2(
-    element: str | int,
-    charge: int,
-    energy_ev: NDArray[np.float64],
-    a: float | None = None,
-    b: float | None = None,
-    c: float | None = None,
-) -> NDArray[np.float64]: ...
 def _breeding_ladder(
     element: str | int,
     charge: int,

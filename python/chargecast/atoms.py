@@ -232,7 +232,8 @@ def j_tau_c_cm2(element: str | int, charge: int, energy_ev: Any) -> Any:
     193
     """
     arr, shape = as_float_array("energy_ev", energy_ev)
-    return restore(_core._j_tau_c_cm2(element, as_int("charge", charge), arr), shape)
+    # jτ is the breeding time at a current density of 1 A/cm² (τ = jτ/j), in C/cm².
+    return restore(_core._breeding_time_s(element, as_int("charge", charge), arr, 1.0), shape)
 
 
 def breeding_ladder(

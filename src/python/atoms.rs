@@ -12,7 +12,7 @@ use crate::processes::electron_impact::{
     ionization_cross_sections_cm2, ionization_rate_coefficients_cm3_s, peak_energy_ev,
 };
 use crate::processes::lotz::LotzConstants;
-use crate::sources::breeding::{breeding_ladder, breeding_time_s, j_tau_c_cm2};
+use crate::sources::breeding::{breeding_ladder, breeding_time_s};
 
 /// A chemical element: ionization energies, ions, isotopes and X-ray levels.
 ///
@@ -298,30 +298,6 @@ fn _breeding_time_s<'py>(
     Ok(to_py(py, out))
 }
 
-/// Ionization factor jτ (C/cm²) to reach `charge`, one value per energy.
-#[pyfunction]
-#[pyo3(signature = (element, charge, energy_ev, a=None, b=None, c=None))]
-fn _j_tau_c_cm2<'py>(
-    py: Python<'py>,
-    element: &Bound<'py, PyAny>,
-    charge: i64,
-    energy_ev: PyReadonlyArray1<'py, f64>,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
-) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = vec_arg(&energy_ev);
-    let k = constants(a, b, c);
-    let out = guard(py, || {
-        energies
-            .iter()
-            .map(|e| j_tau_c_cm2(el, charge, *e, k))
-            .collect()
-    })?;
-    Ok(to_py(py, out))
-}
-
 /// The breeding ladder as a dict of equal-length arrays (one entry per step q → q+1).
 #[pyfunction]
 #[pyo3(signature = (element, charge, energy_ev, current_density_a_cm2, a=None, b=None, c=None))]
@@ -369,7 +345,6 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(lotz_rate_coefficient_cm3_s, m)?)?;
     m.add_function(wrap_pyfunction!(lotz_peak_energy_ev, m)?)?;
     m.add_function(wrap_pyfunction!(_breeding_time_s, m)?)?;
-    m.add_function(wrap_pyfunction!(_j_tau_c_cm2, m)?)?;
     m.add_function(wrap_pyfunction!(_breeding_ladder, m)?)?;
     Ok(())
 }
