@@ -50,6 +50,28 @@ def as_int(name: str, value: Any) -> int:
     return int(value)
 
 
+def as_times(name: str, value: Any) -> np.ndarray:
+    """Output times as a 1-D float64 array (the core checks order and sign)."""
+    arr, shape = as_float_array(name, value)
+    if len(shape) > 1:
+        raise InvalidParameterError(f"{name} must be one-dimensional; got shape {shape}")
+    return arr
+
+
+def as_charges(value: Any) -> list[int]:
+    """One target charge state or a sequence of them, as a list of ints."""
+    if isinstance(value, (list, tuple, np.ndarray)):
+        return [as_int("charge", q) for q in value]
+    return [as_int("charge", value)]
+
+
+def element_symbol(element: Any) -> str:
+    """The symbol of an element given by symbol, name or Z."""
+    from chargecast import _core
+
+    return _core.element(element).symbol
+
+
 def require_pandas() -> Any:
     try:
         import pandas as pd

@@ -15,9 +15,12 @@ from chargecast import _core
 from chargecast._core import InvalidParameterError
 from chargecast._util import (
     PALETTE,
+    as_charges,
     as_float,
     as_float_array,
     as_int,
+    as_times,
+    element_symbol,
     require_pandas,
     require_pyplot,
     restore,
@@ -28,15 +31,8 @@ from chargecast.trap import EnergyScan
 ElementLike = Union[str, int]
 
 
-def _symbol(element: ElementLike) -> str:
-    return _core.element(element).symbol
-
-
 def _times(times_s: Any) -> np.ndarray:
-    arr, shape = as_float_array("times_s", times_s)
-    if len(shape) > 1:
-        raise InvalidParameterError(f"times_s must be one-dimensional; got shape {shape}")
-    return arr
+    return as_times("times_s", times_s)
 
 
 def _charge(charge: Any) -> int:
@@ -255,7 +251,7 @@ def photon_thresholds(element: ElementLike, photon_energy_ev: float) -> PhotonTh
     1.0
     """
     e = as_float("photon_energy_ev", photon_energy_ev)
-    return PhotonThresholds(_symbol(element), e, _core._photon_thresholds(element, e))
+    return PhotonThresholds(element_symbol(element), e, _core._photon_thresholds(element, e))
 
 
 class PhotonSelectivity:
@@ -453,7 +449,7 @@ class PhotonBeam:
         """
         t = _times(times_s)
         fr = _core._photon_evolve(element, *self._args(), t, as_int("initial_charge", initial_charge))
-        return Evolution(_symbol(element), t, fr, self._label())
+        return Evolution(element_symbol(element), t, fr, self._label())
 
     def steady_state(self, element: ElementLike) -> np.ndarray:
         """Long-time fractions of atoms that start neutral: where the photon ladder ends.
@@ -498,15 +494,12 @@ class PhotonBeam:
         PhotonEnergyScan
             ``best_energy_ev``, ``best_time_s``, ``best_fraction`` and ``fraction[energy, time]``.
         """
-        if isinstance(charge, (list, tuple, np.ndarray)):
-            charges = [as_int("charge", q) for q in charge]
-        else:
-            charges = [as_int("charge", charge)]
+        charges = as_charges(charge)
         e, _ = as_float_array("photon_energies_ev", photon_energies_ev)
         t = _times(times_s)
         d = _core._photon_energy_time_map(element, charges, self.flux_cm2_s, self.bandwidth_ev, e, t)
         return PhotonEnergyScan(
-            _symbol(element),
+            element_symbol(element),
             charges,
             e,
             t,
@@ -757,7 +750,7 @@ def appearance_curves(
     if len(shape) > 1:
         raise InvalidParameterError(f"energies_ev must be one-dimensional; got shape {shape}")
     spread = as_float("energy_spread_ev", energy_spread_ev)
-    return AppearanceCurves(_symbol(element), e, _core._appearance_curves(element, e, spread), spread)
+    return AppearanceCurves(element_symbol(element), e, _core._appearance_curves(element, e, spread), spread)
 
 
 class ElectronImpactSource:
@@ -802,7 +795,7 @@ class ElectronImpactSource:
         ChargeYields
         """
         sub, direct = _core._impact_cross_sections(element, self.energy_ev, self.energy_spread_ev)
-        return ChargeYields(_symbol(element), self.energy_ev, self.energy_spread_ev, sub, direct)
+        return ChargeYields(element_symbol(element), self.energy_ev, self.energy_spread_ev, sub, direct)
 
     def appearance_curves(self, element: ElementLike, energies_ev: Any) -> AppearanceCurves:
         """Energy scan with this source's energy spread; see :func:`appearance_curves`."""

@@ -11,21 +11,23 @@ import numpy as np
 
 from chargecast import _core
 from chargecast._core import InvalidParameterError
-from chargecast._util import PALETTE, as_float, as_float_array, as_int, require_pyplot
+from chargecast._util import (
+    PALETTE,
+    as_charges,
+    as_float,
+    as_float_array,
+    as_int,
+    as_times,
+    element_symbol,
+    require_pyplot,
+)
 from chargecast.evolution import Evolution, _inline_figure
 
 ElectronBeam = _core.ElectronBeam
 
 
 def _times(times_s: Any) -> np.ndarray:
-    arr, shape = as_float_array("times_s", times_s)
-    if len(shape) > 1:
-        raise InvalidParameterError(f"times_s must be one-dimensional; got shape {shape}")
-    return arr
-
-
-def _symbol(element: Union[str, int]) -> str:
-    return _core.element(element).symbol
+    return as_times("times_s", times_s)
 
 
 class BeamTrap:
@@ -178,7 +180,7 @@ class BeamTrap:
         """
         t = _times(times_s)
         fr = self._trap.evolve(element, t, as_int("initial_charge", initial_charge))
-        return Evolution(_symbol(element), t, fr, self._label())
+        return Evolution(element_symbol(element), t, fr, self._label())
 
     def steady_state(self, element: Union[str, int]) -> np.ndarray:
         """Equilibrium charge-state fractions (long-time limit).
@@ -253,16 +255,12 @@ class BeamTrap:
             ``best_energy_ev``, ``best_time_s``, ``best_fraction`` and the whole map
             ``fraction[energy, time]`` for plotting.
         """
-        charges = (
-            [as_int("charge", charge)]
-            if not isinstance(charge, (list, tuple, np.ndarray))
-            else [as_int("charge", q) for q in charge]
-        )
+        charges = as_charges(charge)
         e, _ = as_float_array("energies_ev", energies_ev)
         t = _times(times_s)
         d = self._trap.energy_time_map(element, charges, e, t)
         return EnergyScan(
-            _symbol(element),
+            element_symbol(element),
             charges,
             e,
             t,
@@ -403,7 +401,7 @@ def evolve_batch(cases: Sequence[tuple[BeamTrap, Union[str, int]]], times_s: Any
             raise InvalidParameterError(f"each case must be a tuple (BeamTrap, element); got {case!r}")
     t = _times(times_s)
     arrays = _core._evolve_batch([c[0]._trap for c in cases], [c[1] for c in cases], t)
-    return [Evolution(_symbol(el), t, fr, trap._label()) for (trap, el), fr in zip(cases, arrays)]
+    return [Evolution(element_symbol(el), t, fr, trap._label()) for (trap, el), fr in zip(cases, arrays)]
 
 
 def solve_rate_equations(
