@@ -12,6 +12,7 @@ the facility's radiation-safety officer and licensed practice.
 
 from __future__ import annotations
 
+from chargecast import _core
 from chargecast._core import (
     ChargecastError,
     ChargeOutOfRangeError,
@@ -84,7 +85,7 @@ from chargecast.spectrum import (
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
 
-__version__ = "0.1.0"
+__version__: str = _core.__version__
 
 __all__ = [
     "AppearanceCurves",

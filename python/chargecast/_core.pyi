@@ -3,6 +3,8 @@ from __future__ import annotations
 
 from typing import Any, final
 
+__version__: str
+
 import numpy as np
 from numpy.typing import NDArray
 

@@ -96,5 +96,32 @@ def require_pyplot() -> Any:
     return plt
 
 
+def inline_png(plot: Any, figsize: tuple[float, float] = (6.5, 3.6)) -> str:
+    """A figure as an HTML ``<img>`` (base64 PNG), or ``""`` without matplotlib.
+
+    ``plot`` is a callable taking ``ax=`` (a result's ``plot`` method); a plot that returns
+    None draws nothing and gives ``""``. Used by every ``_repr_html_``.
+    """
+    try:
+        import base64
+        import io
+
+        import matplotlib
+
+        matplotlib.use("Agg", force=False)
+        import matplotlib.pyplot as plt
+    except ImportError:
+        return ""
+    fig, ax = plt.subplots(figsize=figsize)
+    try:
+        if plot(ax=ax) is None:
+            return ""
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png", dpi=80, bbox_inches="tight")
+    finally:
+        plt.close(fig)
+    return '<br><img src="data:image/png;base64,' + base64.b64encode(buf.getvalue()).decode() + '">'
+
+
 # Colour-blind-safe palette (Okabe & Ito 2008), used by every plot.
 PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442", "#000000"]

@@ -8,7 +8,7 @@ from typing import Any, Optional
 import numpy as np
 
 from chargecast._core import ChargeOutOfRangeError, InvalidParameterError
-from chargecast._util import PALETTE, as_float, require_pandas, require_pyplot
+from chargecast._util import PALETTE, as_float, inline_png, require_pandas, require_pyplot
 
 # Yellow is hard to see as a thin line on white: curves use the rest of the palette.
 LINE_COLORS = [c for c in PALETTE if c != "#F0E442"]
@@ -217,30 +217,10 @@ class Evolution:
             f"<b>{title}</b><table><tr><th>charge</th><th>peak fraction</th><th>peak time (s)</th>"
             f"<th>final fraction</th></tr>{rows}</table>"
         )
-        return table + _inline_figure(self)
+        return table + inline_png(self.plot)
 
     def __repr__(self) -> str:
         return (
             f"Evolution({self.element!r}, {len(self.times_s)} times {self.times_s[0]:.3g}–"
             f"{self.times_s[-1]:.3g} s, mean charge at end {self.mean_charge()[-1]:.2f})"
         )
-
-
-def _inline_figure(result: Any) -> str:
-    """A PNG of ``result.plot()`` as an HTML <img>, or nothing without matplotlib."""
-    try:
-        import base64
-        import io
-
-        import matplotlib
-
-        matplotlib.use("Agg", force=False)
-        import matplotlib.pyplot as plt
-    except ImportError:
-        return ""
-    fig, ax = plt.subplots(figsize=(6, 3.5))
-    result.plot(ax=ax)
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=80, bbox_inches="tight")
-    plt.close(fig)
-    return '<br><img src="data:image/png;base64,' + base64.b64encode(buf.getvalue()).decode() + '">'

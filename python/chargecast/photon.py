@@ -21,11 +21,12 @@ from chargecast._util import (
     as_int,
     as_times,
     element_symbol,
+    inline_png,
     require_pandas,
     require_pyplot,
     restore,
 )
-from chargecast.evolution import Evolution, _inline_figure
+from chargecast.evolution import Evolution
 from chargecast.trap import EnergyScan
 
 ElementLike = Union[str, int]
@@ -617,7 +618,7 @@ class ChargeYields:
         head = html.escape(f"{self.element}: one collision at {self.energy_ev:g} eV")
         return (
             f"<b>{head}</b><table><tr><th>charge</th><th>σ (cm²)</th><th>yield</th></tr>{rows}</table>"
-            + _inline_figure(self)
+            + inline_png(self.plot)
         )
 
     def __repr__(self) -> str:
@@ -712,7 +713,7 @@ class AppearanceCurves:
         )
         return (
             f"<b>{head}</b><table><tr><th>charge</th><th>first scanned energy with σ &gt; 0 (eV)</th></tr>"
-            f"{rows}</table>" + _inline_figure(self)
+            f"{rows}</table>" + inline_png(self.plot)
         )
 
     def __repr__(self) -> str:

@@ -83,7 +83,7 @@ import numpy as np
 
 from chargecast import _core
 from chargecast._core import ChargecastError, ScenarioError
-from chargecast._util import PALETTE, require_pyplot
+from chargecast._util import PALETTE, inline_png, require_pyplot
 
 __all__ = ["CAUTIONS", "Report", "Scenario", "bundled_scenarios", "load_scenario"]
 
@@ -865,7 +865,7 @@ class Report:
         parts = [f"<h4>{html.escape(self.scenario.title or self.scenario.file)}</h4>"]
         parts.append(f"<pre>{html.escape(self.text())}</pre>")
         for plot in (self.plot_evolution, self.plot_energy_map, self.plot_spectrum):
-            parts.append(_inline_png(plot))
+            parts.append(inline_png(plot, figsize=(7, 3.8)))
         return "".join(parts)
 
     # -- figures
@@ -1559,24 +1559,3 @@ def _jsonable(x: Any) -> Any:
         v = float(x)
         return v if math.isfinite(v) else None
     return x
-
-
-def _inline_png(plot: Callable[..., Any]) -> str:
-    try:
-        import base64
-        import io
-
-        import matplotlib
-
-        matplotlib.use("Agg", force=False)
-        import matplotlib.pyplot as plt
-    except ImportError:
-        return ""
-    fig, ax = plt.subplots(figsize=(7, 3.8))
-    if plot(ax=ax) is None:
-        plt.close(fig)
-        return ""
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png", dpi=80, bbox_inches="tight")
-    plt.close(fig)
-    return '<br><img src="data:image/png;base64,' + base64.b64encode(buf.getvalue()).decode() + '">'

@@ -19,9 +19,10 @@ from chargecast._util import (
     as_int,
     as_times,
     element_symbol,
+    inline_png,
     require_pyplot,
 )
-from chargecast.evolution import Evolution, _inline_figure
+from chargecast.evolution import Evolution
 
 ElectronBeam = _core.ElectronBeam
 
@@ -361,7 +362,7 @@ class EnergyScan:
             f"{self.element}{self._target()}: best {self.best_energy_ev:.4g} eV at "
             f"{self.best_time_s:.3g} s, fraction {self.best_fraction:.3f}"
         )
-        return f"<b>{head}</b>" + _inline_figure(self)
+        return f"<b>{head}</b>" + inline_png(self.plot)
 
     def __repr__(self) -> str:
         return (

@@ -4,12 +4,14 @@
 mod binding;
 mod element;
 mod isotope;
+mod species;
 mod subshell;
 pub(crate) mod table;
 mod xray;
 
 pub use element::{all_elements, element, element_by_z, Element, EnergyKind};
 pub use isotope::Isotope;
+pub use species::{isotope_label, parse_species, resolve_isotope, split_species, Species};
 pub use subshell::{Configuration, Subshell};
 pub use xray::{edge_binding_ev, neutral_photoabsorption, XrayLevel};
 

@@ -15,6 +15,8 @@ pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 
 #[pymodule]
 fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    // The version is written once, in Cargo.toml; the Python package reads it from here.
+    m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     errors::register(m)?;
     atoms::register(m)?;
     engine::register(m)?;

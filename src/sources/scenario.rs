@@ -14,7 +14,7 @@ use toml::de::{DeTable, DeValue};
 
 use super::breeding::breeding_time_s;
 use super::electron_beam::ElectronBeam;
-use crate::atoms::{element, Element, Isotope};
+use crate::atoms::{element, split_species, Element, Isotope};
 use crate::error::{Error, Result};
 use crate::processes::gases::gas;
 
@@ -505,7 +505,7 @@ impl Checker<'_, '_> {
                 "missing table [target]: add it with isotope = \"…\" (e.g. \"129Xe\") and charge = … (the wanted charge state)",
             )
         })?;
-        let (el, mass) = self.wrap("target.isotope", parse_species_name(&raw.isotope))?;
+        let (el, mass) = self.wrap("target.isotope", split_species(&raw.isotope))?;
         let iso = match mass {
             Some(a) => self.wrap("target.isotope", el.isotope(a))?,
             None => match el.natural_isotopes().as_slice() {
@@ -566,7 +566,7 @@ impl Checker<'_, '_> {
         let mut out = Vec::with_capacity(raw.len());
         for (i, s) in raw.into_iter().enumerate() {
             let at = |f: &str| format!("species[{i}].{f}");
-            let (el, mass) = self.wrap(&at("name"), parse_species_name(&s.name))?;
+            let (el, mass) = self.wrap(&at("name"), split_species(&s.name))?;
             if let Some(a) = mass {
                 self.wrap(&at("name"), el.isotope(a))?;
             }
@@ -1052,50 +1052,6 @@ fn label(el: &Element, iso: &Isotope) -> String {
     format!("{}{}", iso.mass_number, el.symbol())
 }
 
-/// An element ("Xe", "xenon", "54") or isotope ("129Xe", "Xe129", "Xe-129") name: the element
-/// and the mass number if one was given.
-pub fn parse_species_name(spec: &str) -> Result<(&'static Element, Option<u32>)> {
-    let s = spec.trim();
-    let bad = || {
-        Error::invalid(
-            "species",
-            format!("{spec:?}"),
-            "give an element (\"Xe\", \"xenon\") or an isotope (\"129Xe\", \"Xe129\", \"Xe-129\")",
-        )
-    };
-    if s.is_empty() {
-        return Err(bad());
-    }
-    if s.chars().all(|c| c.is_ascii_digit()) {
-        return Ok((element(s)?, None));
-    }
-    let lead: String = s.chars().take_while(char::is_ascii_digit).collect();
-    let rest = &s[lead.len()..];
-    let letters: String = rest.chars().take_while(char::is_ascii_alphabetic).collect();
-    let after = &rest[letters.len()..];
-    let tail = after.strip_prefix('-').unwrap_or(after);
-    if letters.is_empty()
-        || !tail.chars().all(|c| c.is_ascii_digit())
-        || (after.starts_with('-') && tail.is_empty())
-    {
-        return Err(bad());
-    }
-    let el = element(&letters).map_err(|_| Error::UnknownElement {
-        given: spec.to_string(),
-        max_z: 118,
-    })?;
-    let mass = match (lead.is_empty(), tail.is_empty()) {
-        (true, true) => None,
-        (false, true) => Some(lead.as_str()),
-        (true, false) => Some(tail),
-        (false, false) => return Err(bad()),
-    };
-    let mass = mass
-        .map(|a| a.parse::<u32>().map_err(|_| bad()))
-        .transpose()?;
-    Ok((el, mass))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1208,9 +1164,9 @@ CO = 1e-8
             ("Xe-129", 54, Some(129)),
             ("xenon", 54, None),
         ] {
-            let (el, m) = parse_species_name(spec).unwrap();
+            let (el, m) = split_species(spec).unwrap();
             assert_eq!((el.z(), m), (z, a), "{spec}");
         }
-        assert!(parse_species_name("12-C").is_err());
+        assert!(split_species("12-C").is_err());
     }
 }

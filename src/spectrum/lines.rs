@@ -5,8 +5,8 @@ use std::cmp::Ordering;
 use std::collections::HashMap;
 
 use super::masses::ion_mass_u;
-use super::species::{isotope_label, parse_species};
 use crate::atoms::{element_by_z, Isotope};
+use crate::atoms::{isotope_label, parse_species};
 use crate::error::{require_non_negative, Error, Result};
 
 /// One species of a source: what it is, how much of it there is, and its charge-state

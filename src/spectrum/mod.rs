@@ -11,11 +11,10 @@ mod lines;
 mod masses;
 mod overlaps;
 mod peaks;
-mod species;
 
+pub use crate::atoms::{isotope_label, parse_species, resolve_isotope, Species};
 pub use clean::{clean_charge_states, AcceptanceWindow, ChargeStateRank};
 pub use lines::{aq_lines, Line, LineList, SpeciesInput};
 pub use masses::{binding_energy_ev, binding_mass_u, ion_mass_u, mass_over_charge};
 pub use overlaps::{overlaps, Interference, OverlapReport, OverlapSettings};
 pub use peaks::{erf, erfc, PeakShape, Peaks};
-pub use species::{isotope_label, parse_species, resolve_isotope, Species};

@@ -1,7 +1,7 @@
 //! Naming isotopes: "84Kr", "Kr84", "Kr-84", "krypton-84", or an element alone ("Kr",
 //! "krypton", "36") for its natural isotopic mix.
 
-use crate::atoms::{element, Element, Isotope};
+use super::{element, element_by_z, Element, Isotope};
 use crate::error::{Error, Result};
 
 /// An element in its natural isotopic mix, or one isotope of it.
@@ -34,17 +34,19 @@ impl Species {
 
 /// Label of an isotope such as "84Kr".
 pub fn isotope_label(isotope: &Isotope) -> String {
-    let symbol = crate::atoms::element_by_z(isotope.z as i64).map_or("?", |e| e.symbol());
+    let symbol = element_by_z(isotope.z as i64).map_or("?", |e| e.symbol());
     format!("{}{}", isotope.mass_number, symbol)
 }
 
-/// Read an isotope or element specification.
-pub fn parse_species(spec: &str) -> Result<Species> {
+/// Split an element or isotope name ("Xe", "xenon", "54", "129Xe", "Xe129", "Xe-129",
+/// "xenon-129") into the element and the mass number if one was written. The mass number is
+/// not checked against the isotope table: [`parse_species`] does that.
+pub fn split_species(spec: &str) -> Result<(&'static Element, Option<u32>)> {
     let s = spec.trim();
     let bad = || {
         Error::invalid(
             "isotope",
-            format!("{spec:?}"),
+            format!("{:?}", short(spec)),
             "give an isotope as \"84Kr\", \"Kr84\" or \"Kr-84\", or an element (\"Kr\", \"krypton\", 36) for its natural mix",
         )
     };
@@ -52,20 +54,18 @@ pub fn parse_species(spec: &str) -> Result<Species> {
         return Err(bad());
     }
     if s.chars().all(|c| c.is_ascii_digit()) {
-        return Ok(Species::Natural(element(s)?));
+        return Ok((element(s)?, None));
     }
-    let lead: String = s.chars().take_while(|c| c.is_ascii_digit()).collect();
+    let lead: String = s.chars().take_while(char::is_ascii_digit).collect();
     let rest = &s[lead.len()..];
-    let letters: String = rest
-        .chars()
-        .take_while(|c| c.is_ascii_alphabetic())
-        .collect();
-    let tail = rest[letters.len()..].trim_start_matches('-');
-    if letters.is_empty() || !tail.chars().all(|c| c.is_ascii_digit()) {
-        return Err(bad());
-    }
+    let letters: String = rest.chars().take_while(char::is_ascii_alphabetic).collect();
+    let after = &rest[letters.len()..];
+    let tail = after.strip_prefix('-').unwrap_or(after);
     // A hyphen belongs between the symbol and a trailing mass number only.
-    if rest[letters.len()..].starts_with('-') && tail.is_empty() {
+    if letters.is_empty()
+        || !tail.chars().all(|c| c.is_ascii_digit())
+        || (after.starts_with('-') && tail.is_empty())
+    {
         return Err(bad());
     }
     let mass_number = match (lead.is_empty(), tail.is_empty()) {
@@ -75,16 +75,32 @@ pub fn parse_species(spec: &str) -> Result<Species> {
         (false, false) => return Err(bad()),
     };
     let el = element(&letters).map_err(|_| Error::UnknownElement {
-        given: spec.to_string(),
+        given: short(spec),
         max_z: 118,
     })?;
-    match mass_number {
-        None => Ok(Species::Natural(el)),
-        Some(a) => {
-            let a: u32 = a.parse().map_err(|_| bad())?;
-            Ok(Species::Isotope(el, el.isotope(a)?))
-        }
+    let mass_number = mass_number
+        .map(|a| a.parse::<u32>().map_err(|_| bad()))
+        .transpose()?;
+    Ok((el, mass_number))
+}
+
+/// Read an isotope or element specification (see [`split_species`]); a mass number must
+/// name an isotope in the table.
+pub fn parse_species(spec: &str) -> Result<Species> {
+    match split_species(spec)? {
+        (el, None) => Ok(Species::Natural(el)),
+        (el, Some(a)) => Ok(Species::Isotope(el, el.isotope(a)?)),
     }
+}
+
+/// A user-given name as quoted in an error message: at most 40 characters, so a huge value
+/// does not flood the message.
+fn short(spec: &str) -> String {
+    let mut out: String = spec.chars().take(40).collect();
+    if spec.chars().count() > 40 {
+        out.push('…');
+    }
+    out
 }
 
 /// One isotope from a specification; an element alone is accepted when it has a single
