@@ -12,3 +12,4 @@ pub mod photoionization;
 pub mod radiative_recombination;
 pub mod relaxation;
 pub mod special;
+pub mod vacancy_jumps;

@@ -17,7 +17,7 @@ use crate::processes::gases::{gas, Gas};
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
 use crate::processes::lotz::LotzConstants;
 use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
-use crate::processes::relaxation::vacancy_relaxation;
+use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 
 /// One residual-gas component.
@@ -155,31 +155,21 @@ impl BeamTrap {
     ) -> Result<Vec<(u32, f64)>> {
         let ion = element.ion(i64::from(charge))?;
         let energy_ev = self.beam.energy_ev;
-        let mut per_charge = vec![0.0; (element.z() - charge) as usize + 1];
-        for (state, lotz) in ion
+        let lotz_per_subshell = ion
             .subshells()
             .iter()
             .zip(ion_lotz_shells(&ion, self.lotz_constants))
-        {
-            let sigma = lotz_subshell_cross_section_cm2(&lotz, energy_ev);
-            if sigma.is_nan() || sigma <= 0.0 {
-                continue;
-            }
-            for (k, p) in vacancy_relaxation(&ion, state.subshell)?.iter().enumerate() {
-                if let Some(slot) = per_charge.get_mut(1 + k) {
-                    *slot += sigma * p;
-                }
-            }
-        }
-        if let Some(slot) = per_charge.get_mut(2) {
+            .map(|(state, lotz)| {
+                (
+                    state.subshell,
+                    lotz_subshell_cross_section_cm2(&lotz, energy_ev),
+                )
+            });
+        let mut per_charge = vacancy_jumps(&ion, lotz_per_subshell)?;
+        if let Some(slot) = per_charge.get_mut(charge as usize + 2) {
             *slot += direct_double_ionization_cm2(&ion, energy_ev);
         }
-        Ok(per_charge
-            .into_iter()
-            .enumerate()
-            .filter(|(_, s)| *s > 0.0)
-            .map(|(k, s)| (charge + k as u32, s))
-            .collect())
+        Ok(nonzero_jumps(per_charge))
     }
 
     /// Radiative-recombination rate of charge q → q−1 (s⁻¹): (j/e)·σ_RR (Kim & Pratt 1983).

@@ -17,6 +17,7 @@ use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::processes::relaxation::vacancy_relaxation;
+use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 use crate::sources::energy_map::{energy_time_map, EnergyTimeMap};
 
@@ -94,25 +95,11 @@ impl PhotonBeam {
     /// subshell followed by relaxation.
     pub fn jumps_from(&self, element: &'static Element, charge: u32) -> Result<Vec<(u32, f64)>> {
         let ion = element.ion(i64::from(charge))?;
-        let mut rates = vec![0.0; (element.z() + 1) as usize];
-        for (subshell, sigma) in self.subshell_cross_sections_cm2(element, charge)? {
-            let rate = self.flux_cm2_s * sigma;
-            if rate.is_nan() || rate <= 0.0 {
-                continue;
-            }
-            let yields = vacancy_relaxation(&ion, subshell)?;
-            for (k, p) in yields.iter().enumerate() {
-                if let Some(slot) = rates.get_mut(charge as usize + 1 + k) {
-                    *slot += rate * p;
-                }
-            }
-        }
-        Ok(rates
+        let rates_per_subshell = self
+            .subshell_cross_sections_cm2(element, charge)?
             .into_iter()
-            .enumerate()
-            .filter(|(_, r)| *r > 0.0)
-            .map(|(to, r)| (to as u32, r))
-            .collect())
+            .map(|(subshell, sigma)| (subshell, self.flux_cm2_s * sigma));
+        Ok(nonzero_jumps(vacancy_jumps(&ion, rates_per_subshell)?))
     }
 
     /// The jump-rate matrix [from, to] (s⁻¹), (Z+1)×(Z+1).
@@ -285,23 +272,28 @@ pub fn photon_thresholds(
     }
     let sigma = subshell_cross_sections_cm2(&neutral, photon_energy_ev)?;
     let total: f64 = sigma.iter().map(|s| s.cross_section_cm2).sum();
+    let per_charge_cm2 = vacancy_jumps(
+        &neutral,
+        sigma.iter().map(|s| (s.subshell, s.cross_section_cm2)),
+    )?;
+    for entry in out.iter_mut() {
+        if total > 0.0 {
+            entry.yield_per_photon = per_charge_cm2[entry.charge as usize] / total;
+        }
+    }
+    // The routes: which open subshells relax to each charge, and how probably.
     for (s, sig) in neutral.subshells().iter().zip(&sigma) {
         if sig.cross_section_cm2.is_nan() || sig.cross_section_cm2 <= 0.0 {
             continue;
         }
         let yields = vacancy_relaxation(&neutral, s.subshell)?;
         for (k, &p) in yields.iter().enumerate() {
-            if p > 0.0 {
-                if let Some(entry) = out.get_mut(k) {
-                    entry.routes.push(ThresholdRoute {
-                        subshell: s.subshell,
-                        binding_ev: s.binding_ev,
-                        probability: p,
-                    });
-                    if total > 0.0 {
-                        entry.yield_per_photon += p * sig.cross_section_cm2 / total;
-                    }
-                }
+            if let Some(entry) = out.get_mut(k).filter(|_| p > 0.0) {
+                entry.routes.push(ThresholdRoute {
+                    subshell: s.subshell,
+                    binding_ev: s.binding_ev,
+                    probability: p,
+                });
             }
         }
     }

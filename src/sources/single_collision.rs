@@ -27,7 +27,7 @@ use crate::error::{require_all_positive, require_non_negative, require_positive,
 use crate::processes::double_ionization::direct_double_ionization_cm2;
 use crate::processes::electron_impact::ion_lotz_shells;
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
-use crate::processes::relaxation::vacancy_relaxation;
+use crate::processes::vacancy_jumps::vacancy_jumps;
 use crate::sources::photon_beam::gaussian_nodes;
 
 /// Partial cross sections of one collision with the neutral atom, by route; index = final
@@ -82,23 +82,18 @@ pub fn impact_cross_sections_at(
 ) -> Result<ImpactCrossSections> {
     let neutral = element.ion(0)?;
     let n = element.z() as usize + 1;
-    let mut out = ImpactCrossSections::zeros(n);
-    for (state, lotz) in neutral
+    let lotz_per_subshell = neutral
         .subshells()
         .iter()
         .zip(ion_lotz_shells(&neutral, None))
-    {
-        let sigma = lotz_subshell_cross_section_cm2(&lotz, energy_ev);
-        if sigma.is_nan() || sigma <= 0.0 {
-            continue;
-        }
-        let yields = vacancy_relaxation(&neutral, state.subshell)?;
-        for (k, p) in yields.iter().enumerate() {
-            if let Some(slot) = out.subshell_ionization_cm2.get_mut(1 + k) {
-                *slot += sigma * p;
-            }
-        }
-    }
+        .map(|(state, lotz)| {
+            (
+                state.subshell,
+                lotz_subshell_cross_section_cm2(&lotz, energy_ev),
+            )
+        });
+    let mut out = ImpactCrossSections::zeros(n);
+    out.subshell_ionization_cm2 = vacancy_jumps(&neutral, lotz_per_subshell)?;
     if let Some(slot) = out.direct_double_cm2.get_mut(2) {
         *slot = direct_double_ionization_cm2(&neutral, energy_ev);
     }
