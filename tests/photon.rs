@@ -8,8 +8,8 @@ use chargecast::processes::relaxation::{
     max_extra_electrons, mean_extra_charge, vacancy_relaxation,
 };
 use chargecast::solve::evolve;
+use chargecast::sources::electron_impact::{appearance_curves, ElectronImpactSource};
 use chargecast::sources::photon_beam::{photon_network, photon_thresholds, PhotonBeam};
-use chargecast::sources::single_collision::{appearance_curves, ElectronImpactSource};
 use proptest::prelude::*;
 
 /// Rydberg energy, fine-structure constant and Bohr radius, CODATA 2018 (as in scipy.constants).

@@ -4,8 +4,8 @@
 
 pub mod charge_exchange;
 pub mod double_ionization;
-pub mod electron_impact;
 pub mod gases;
+pub mod ion_lotz;
 pub mod kramers;
 pub mod lotz;
 pub mod photoionization;

@@ -8,7 +8,7 @@ use pyo3::types::PyDict;
 use super::convert::int_arg;
 use super::{element_arg, guard, to_py, vec_arg};
 use crate::atoms::{Element, Ion};
-use crate::processes::electron_impact::{
+use crate::processes::ion_lotz::{
     ionization_cross_sections_cm2, ionization_rate_coefficients_cm3_s, peak_energy_ev,
 };
 use crate::processes::lotz::LotzConstants;

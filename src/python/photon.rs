@@ -11,8 +11,8 @@ use crate::atoms::{Element, Subshell};
 use crate::error::Result;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::processes::relaxation::{max_extra_electrons, vacancy_relaxation};
+use crate::sources::electron_impact::{appearance_curves, ElectronImpactSource};
 use crate::sources::photon_beam::{photon_selectivity, photon_thresholds, PhotonBeam};
-use crate::sources::single_collision::{appearance_curves, ElectronImpactSource};
 
 /// (subshell labels, binding energies (eV), model names per energy and subshell,
 /// cross sections [energies, subshells] in cm²) of ion `charge`.

@@ -7,7 +7,7 @@
 use crate::atoms::Element;
 use crate::constants::ELEMENTARY_CHARGE_C;
 use crate::error::{require_positive, Result};
-use crate::processes::electron_impact::{ionization_cross_sections_cm2, peak_energy_ev};
+use crate::processes::ion_lotz::{ionization_cross_sections_cm2, peak_energy_ev};
 use crate::processes::lotz::LotzConstants;
 
 /// One step q → q+1 of the breeding ladder.

@@ -4,7 +4,12 @@
 pub mod beam_trap;
 pub mod breeding;
 pub mod electron_beam;
+pub mod electron_impact;
 pub mod energy_map;
 pub mod photon_beam;
 pub mod scenario;
-pub mod single_collision;
+
+pub use beam_trap::BeamTrap;
+pub use electron_beam::ElectronBeam;
+pub use electron_impact::ElectronImpactSource;
+pub use photon_beam::PhotonBeam;

@@ -25,7 +25,7 @@ use rayon::prelude::*;
 use crate::atoms::Element;
 use crate::error::{require_all_positive, require_non_negative, require_positive, Result};
 use crate::processes::double_ionization::direct_double_ionization_cm2;
-use crate::processes::electron_impact::ion_lotz_shells;
+use crate::processes::ion_lotz::ion_lotz_shells;
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
 use crate::processes::vacancy_jumps::vacancy_jumps;
 use crate::sources::photon_beam::gaussian_nodes;
