@@ -1,7 +1,7 @@
 //! Atoms and ions: embedded tables, element lookup, ion configurations, subshell binding
 //! energies (physics.md §2) and isotopes.
 
-mod binding;
+pub mod binding;
 mod element;
 mod isotope;
 mod species;

@@ -1,6 +1,8 @@
-//! Cross sections and rate coefficients as pure functions of plain numbers (energies,
-//! binding energies, occupancies, charges). One module per physical process; element data
-//! are wired in by the callers.
+//! Atomic processes: cross sections, rate coefficients and the vacancy cascade, one module
+//! per process. They are functions of energies and either plain atomic numbers (binding
+//! energies, occupancies, charges) or an [`crate::atoms::Ion`] whose data they read (its
+//! subshells, binding energies and X-ray yields); they know nothing of beams, traps or
+//! rate networks, which the layers above build from them.
 
 pub mod charge_exchange;
 pub mod double_ionization;

@@ -1,5 +1,6 @@
 //! Sources: turn a source description (electron-beam trap, photon beam, single-collision
-//! electron source) into per-charge rates and rate networks.
+//! electron-impact source) into per-charge rates and rate networks
+//! ([`crate::network::RateNetwork`]), which [`crate::solve`] evolves.
 
 pub mod beam_trap;
 pub mod breeding;
