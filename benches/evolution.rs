@@ -14,7 +14,8 @@
 //! the case `benches/compare_scipy.py` runs against scipy.
 //!
 //! Run with `cargo bench --bench evolution`. For comparison, scipy's solve_ivp(BDF) needs
-//! ~0.5 s for 19 states and 1000 output times (physics.md §12, measured while planning).
+//! ~0.5 s for 19 states and 1000 output times (measured while the project was planned;
+//! README's performance table has today's figures).
 
 use std::hint::black_box;
 use std::time::Duration;

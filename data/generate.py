@@ -24,7 +24,7 @@ from mendeleev.fetch import fetch_table
 HERE = Path(__file__).resolve().parent
 TODAY = _dt.date.today().isoformat()
 
-# Edge → subshell label (physics.md §1); spin–orbit pairs share one (n, l) subshell.
+# Edge → subshell label (K = 1s, L1 = 2s, L2,3 = 2p, …); spin–orbit pairs share one (n, l) subshell.
 EDGE_SUBSHELL = {
     "K": "1s", "L1": "2s", "L2": "2p", "L3": "2p",
     "M1": "3s", "M2": "3p", "M3": "3p", "M4": "3d", "M5": "3d",

@@ -40,7 +40,8 @@ fn breaking_into_a_noble_gas_core_more_than_doubles_the_cost() {
 
 #[test]
 fn binding_energies_never_decrease_with_charge() {
-    // physics.md §2: computed while planning with this rule over Z = 1–98.
+    // The binding-energy rule of chargecast::atoms::binding; checked while planning over
+    // Z = 1–98, here over every complete chain.
     for z in 1..=103 {
         let e = element_by_z(z).unwrap();
         for q in 1..z {
@@ -65,7 +66,7 @@ fn binding_energies_never_decrease_with_charge() {
 
 #[test]
 fn neutral_bindings_are_edges_or_first_ionization_energy() {
-    // At q = 0 the rule is exact by construction: max(edge, IE0) (physics.md §2).
+    // At q = 0 the rule is exact by construction: max(edge, IE0) (Elam et al. 2002 edges).
     let fe = element_by_z(26).unwrap();
     let ion = fe.ion(0).unwrap();
     let ie0 = fe.ionization_energies_ev()[0];

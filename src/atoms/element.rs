@@ -296,7 +296,7 @@ fn read_ionization_energies(elements: &mut [Element]) -> Result<()> {
     Ok(())
 }
 
-/// Subshell binding energies of every charge state (physics.md §2), for complete chains.
+/// Subshell binding energies of every charge state ([`super::binding`]), for complete chains.
 fn shells_for(e: &Element) -> Vec<Vec<ShellState>> {
     if !e.is_complete() {
         return Vec::new();

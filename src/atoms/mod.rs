@@ -1,5 +1,14 @@
 //! Atoms and ions: embedded tables, element lookup, ion configurations, subshell binding
-//! energies (physics.md §2) and isotopes.
+//! energies ([`binding`]) and isotopes.
+//!
+//! Data (embedded from `data/` at build time, each file with a provenance header):
+//! successive ionization energies and ground configurations from the NIST Atomic Spectra
+//! Database (A. Kramida, Yu. Ralchenko, J. Reader and NIST ASD Team; via mendeleev),
+//! complete for Z = 1–103 and partial to 110; neutral-atom X-ray levels, edge jump ratios,
+//! fluorescence and Coster–Kronig yields and photoabsorption from Elam, Ravel & Sieber,
+//! Radiat. Phys. Chem. 63, 121 (2002) and Krause & Oliver (1979) (via xraydb, Z = 1–98);
+//! isotope masses from AME2020 (M. Wang et al., Chin. Phys. C 45, 030003 (2021)) and IUPAC
+//! abundances (via mendeleev).
 
 pub mod binding;
 mod element;
@@ -111,7 +120,8 @@ mod tests {
 
     #[test]
     fn planning_check_values_for_argon() {
-        // physics.md §2, values computed while planning: Ar+ 3s ≈ 38 eV, Ar8+ 1s ≈ 3366 eV.
+        // The binding-energy rule (atoms::binding) worked by hand while planning:
+        // Ar+ 3s ≈ 38 eV, Ar8+ 1s ≈ 3366 eV.
         let b3s = ar(1).binding_ev(Subshell::new(3, 0)).unwrap();
         assert!((b3s - 38.0).abs() < 1.5, "{b3s}");
         let b1s = ar(8).binding_ev(Subshell::new(1, 0)).unwrap();

@@ -1,5 +1,22 @@
 //! Charge exchange of slow ions with neutral gas: the Müller–Salzborn scaling, plus the
-//! kinematic helpers a charge-exchange rate needs (λ = Σ_gas n_gas σ v̄_ion).
+//! kinematic helpers a charge-exchange rate needs.
+//!
+//! # Model
+//!
+//! A. Müller and E. Salzborn, Phys. Lett. A 62, 391 (1977): single-electron capture by an
+//! ion of charge q from a target of first ionization energy I_t (eV) in slow collisions,
+//!
+//!   σ_CX = 1.43×10⁻¹² · q^1.17 · I_t^(−2.76) cm².
+//!
+//! The rate of q → q−1 in a gas mixture is λ = Σ_gas n_gas σ_CX v̄_ion, with the ideal-gas
+//! density n = p/(k_B T_gas) and the Maxwellian mean ion speed v̄ = √(8 kT_i/(π m_ion)).
+//! Target ionization energies: [`super::gases`].
+//!
+//! # Validity and accuracy
+//!
+//! Slow collisions (ion speeds well below the orbital speed of the captured electron), best
+//! for q ≳ 3; a scaling law good to about a factor of 2 (from memory). Checked: Ar¹⁰⁺ on Ar
+//! gives 1.05×10⁻¹⁴ cm² (the value quoted with the formula, from memory) within 1 %.
 
 use crate::constants::{ATOMIC_MASS_UNIT_KG, BOLTZMANN_J_K, ELEMENTARY_CHARGE_C};
 use std::f64::consts::PI;
@@ -34,7 +51,7 @@ mod tests {
 
     #[test]
     fn argon_10_plus_on_argon() {
-        // Müller & Salzborn 1977 (physics.md §6): Ar10+ on Ar (I = 15.7596 eV, NIST ASD)
+        // Müller & Salzborn 1977 (check value from memory): Ar10+ on Ar (I = 15.7596 eV, NIST ASD)
         // → 1.05e-14 cm².
         let s = muller_salzborn_cross_section_cm2(10, 15.7596119);
         assert!((s / 1.05e-14 - 1.0).abs() < 0.01, "{s:e}");

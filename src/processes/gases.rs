@@ -144,7 +144,7 @@ mod tests {
 
     #[test]
     fn ionization_energies_match_the_formula_sheet() {
-        // physics.md §6 (NIST Chemistry WebBook, from memory).
+        // NIST Chemistry WebBook (from memory).
         for (f, ie) in [
             ("H2", 15.43),
             ("N2", 15.58),

@@ -1,5 +1,11 @@
-//! Electron-impact single ionization of a whole ion: the Lotz formula (see [`super::lotz`])
-//! summed over the ion's occupied subshells with their binding energies (physics.md §2).
+//! Electron-impact single ionization of a whole ion: the Lotz formula ([`super::lotz`],
+//! formula, sources and accuracy there) summed over the ion's occupied subshells, each with
+//! its occupancy and its binding energy in that ion ([`crate::atoms::binding`]: exact for the
+//! subshell that the step q → q+1 ionizes, interpolated for the others). Constants: Lotz's
+//! fitted ones where held (H, He 1s), the simplified set elsewhere, or the user's, checked
+//! once here (a > 0, 0 ≤ b ≤ 1, c ≥ 0). Valid for charges 0 … Z−1 (the bare ion cannot be
+//! ionized); accuracy as the Lotz formula with these binding energies (±30–40 % for ions,
+//! from memory).
 
 use super::lotz::{
     lotz_cross_sections_cm2, lotz_fitted_constants, lotz_peak_energy_ev,

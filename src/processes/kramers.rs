@@ -1,5 +1,25 @@
 //! Hydrogenic (Kramers) photoionization, the model used below 100 eV where no photoabsorption
 //! table is reliable.
+//!
+//! # Model
+//!
+//! H. A. Kramers, Phil. Mag. 46, 836 (1923): one electron in shell n bound by B (eV) absorbs
+//! a photon of energy E ≥ B with
+//!
+//!   σ = (64π/3√3)·α·a₀² · (Ry/(n B)) · (B/E)³,  prefactor 7.907×10⁻¹⁸ cm².
+//!
+//! # Validity and accuracy
+//!
+//! Without the Gaunt factor it overestimates hydrogen 1s at threshold by 25 % (exact
+//! 6.304×10⁻¹⁸ cm², Bethe & Salpeter 1957, from memory: Gaunt factor 0.797). For
+//! many-electron atoms it misses screening, Cooper minima, resonances and the delayed onset
+//! of d and f shells: summed over subshells it runs 2–30 times below the Elam et al. (2002)
+//! photoabsorption of neutral atoms between 200 eV and 30 keV (measured while the project
+//! was planned, against xraydb). Just above the first threshold the hydrogenic model of
+//! [`super::photoionization`] (Stobbe 1s, Kramers n ≥ 2) gives 0.94 (He), 2.3 (Ne), 0.39 (Ar)
+//! and 0.24 (Xe) times measured photoabsorption (He: Samson 1966, Ne, Ar, Xe: Marr & West
+//! 1976, values from memory; `tests/python/test_photon.py`): a factor-of-five model, used
+//! only where no table exists.
 
 use crate::constants::{ALPHA, BOHR_RADIUS_M, RYDBERG_EV};
 use crate::error::{require_all_positive, require_positive, Error, Result};
@@ -16,10 +36,8 @@ pub fn kramers_photoionization_prefactor_cm2() -> f64 {
 ///
 /// σ = (64π/3√3)·α·a₀² · (Ry/(n B)) · (B/E)³,  E ≥ B; 0 below threshold
 ///
-/// Without the Gaunt factor it overestimates hydrogen 1s at threshold by 25 % (exact
-/// 6.304×10⁻¹⁸ cm², Gaunt factor 0.797); summed over subshells it runs 2–30 times below
-/// measured neutral-atom photoabsorption between 200 eV and 30 keV (physics.md §8), so it
-/// is a fallback where no table exists.
+/// Accuracy: see the module documentation (25 % high at the hydrogen 1s threshold, a
+/// factor of several for many-electron atoms), so it is a fallback where no table exists.
 pub fn kramers_photoionization_cross_section_cm2(
     n: u32,
     binding_ev: f64,
@@ -65,7 +83,7 @@ mod tests {
 
     #[test]
     fn hydrogen_threshold_value() {
-        // physics.md §8: Kramers 7.907e-18 cm² at the H 1s threshold; the exact value
+        // Kramers (1923): 7.907e-18 cm² at the H 1s threshold; the exact value
         // 6.304e-18 cm² (Bethe & Salpeter 1957, from memory) corresponds to Gaunt factor 0.797.
         let s = kramers_photoionization_cross_section_cm2(1, RYDBERG_EV, RYDBERG_EV);
         assert!((s / 7.907e-18 - 1.0).abs() < 1e-3, "{s:e}");

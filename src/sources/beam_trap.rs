@@ -1,7 +1,36 @@
 //! The electron-beam ion trap: an electron beam of given energy and current density
 //! holding ions of one element for a confinement time, with radiative recombination and
 //! charge exchange on the residual gas. Turns the settings into the rate network of an
-//! element (physics.md §3–§7).
+//! element.
+//!
+//! # Model
+//!
+//! States 0…Z of one element, with the electron flux j/e (cm⁻² s⁻¹) of
+//! [`super::electron_beam`]:
+//!
+//! * ionization q → q+1 at (j/e)·σ_q^Lotz(E) ([`crate::processes::ion_lotz`]); with
+//!   `multiple_ionization`, each subshell's Lotz term relaxes through the vacancy cascade to
+//!   q → q+1+k ([`crate::processes::vacancy_jumps`]) and direct double ionization adds
+//!   q → q+2 ([`crate::processes::double_ionization`]);
+//! * radiative recombination q → q−1 at (j/e)·σ_RR (Kim & Pratt 1983,
+//!   [`crate::processes::radiative_recombination`]);
+//! * charge exchange q → q−1 at Σ_gas n_gas σ_CX v̄_ion (Müller & Salzborn 1977,
+//!   [`crate::processes::charge_exchange`]), a channel open only where the recombined ion
+//!   binds the captured electron more strongly than the gas does (exothermic capture);
+//! * optional escape rates per charge, a constant feed, and the jump rates of a photon beam
+//!   crossing the ions ([`super::photon_beam`]).
+//!
+//! Ions per extraction: the trap fills until the ions' charge compensates the fraction f of
+//! the electron space charge, N_q = f · N_e · F_q / Σ_{q'≥1} q' F_q', with N_e = I L/(e v).
+//!
+//! # Validity and accuracy
+//!
+//! The ions are taken to sit inside the beam (no radial overlap factor), at one fixed ion
+//! temperature; no excitation–autoionization, dielectronic recombination, ion heating or
+//! evaporative escape (give escape rates explicitly). Accuracy is that of the cross sections
+//! (Lotz ±30–40 % for ions, Müller–Salzborn about a factor 2, from memory); the solved
+//! populations match scipy's `expm` and `solve_ivp(Radau)` on the same networks
+//! (`tests/python/test_trap.py`), and ionization alone reproduces the Bateman chain.
 
 use super::electron_beam::{electrons_in_trap, ElectronBeam};
 use super::energy_map::{energy_time_map, EnergyTimeMap};
@@ -30,7 +59,7 @@ pub struct GasComponent {
 /// Which processes the network includes. By default: single ionization (Lotz),
 /// radiative recombination and charge exchange; `multiple_ionization` (off by default)
 /// lets each subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
-/// double ionization (q → q+2), physics.md §9–§10.
+/// double ionization (q → q+2).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Processes {
     pub ionization: bool,

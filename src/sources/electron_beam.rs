@@ -1,5 +1,31 @@
 //! The electron beam of a trap: speed, current density, radius (given, Brillouin or
 //! Herrmann), space-charge potential depression and the resulting on-axis energy.
+//!
+//! # Model
+//!
+//! * Speed: γ = 1 + E/(m_e c²), β = √(1 − 1/γ²), v = βc; current density j = I/(π r²) of a
+//!   uniform beam; electrons in a trap of length L: N_e = I L/(e v).
+//! * Brillouin radius, L. Brillouin, Phys. Rev. 67, 260 (1945):
+//!   r_B = √(2 γ m_e I/(π ε₀ v e B²)), with γm_e in place of m_e (1.7 % larger than the
+//!   non-relativistic form at 10 keV).
+//! * Herrmann radius enclosing 80 % of the current, G. Herrmann, J. Appl. Phys. 29, 127
+//!   (1958) (from memory): r_H = r_B √{½ + √[¼ + 8 k T_c m_e r_c²/(e² B² r_B⁴) +
+//!   B_c² r_c⁴/(B² r_B⁴)]} with cathode temperature T_c, radius r_c and field B_c.
+//! * Space-charge depression of a uniform beam of radius a in a drift tube of radius b
+//!   (Gauss's law): ΔU = I/(4πε₀ v)·(1 + 2 ln(b/a)) ≈ 30 Ω·I/β·(1 + 2 ln(b/a)), axis to wall;
+//!   the energy on axis solves E = e U − e ΔU(E)(1 − f), f the fraction of the electron space
+//!   charge compensated by ions, up to the space-charge-limited current.
+//!
+//! # Validity and accuracy
+//!
+//! A uniform, laminar beam in a long drift tube (no end effects, no radial profile, no
+//! thermal spread beyond the Herrmann term). Checked: the Brillouin radius agrees within 3 %
+//! with the engineering rule `r_B[µm] ≈ 150/B[T]·√(I[A]/√E[keV])` (common practice) at
+//! 1–10 keV and is 147.9 µm at 1 A, 1 keV, 1 T (147.6 µm non-relativistically); the
+//! Herrmann radius reduces to r_B for a cold cathode without field and to flux conservation
+//! r_c √(B_c/B) when the cathode flux dominates; the non-relativistic limiting current is
+//! the usual 25.4 µA·U^{3/2}/(1 + 2 ln(b/a)) within 0.2 % with the beam at U/3 (common
+//! practice).
 
 use crate::constants::{
     BOLTZMANN_J_K, ELECTRON_MASS_KG, ELECTRON_REST_EV, ELEMENTARY_CHARGE_C, EPSILON_0,
@@ -147,7 +173,7 @@ pub fn space_charge_limited_current_a(
 }
 
 /// Electron energy (eV) on the beam axis: the tube-to-cathode voltage less the uncompensated
-/// part of the space-charge depression, E = e U − e ΔU(E)(1 − f) (physics.md §7). The
+/// part of the space-charge depression, E = e U − e ΔU(E)(1 − f). The
 /// depression depends on the speed and so on E itself; the equation is solved on its
 /// physical (high-energy) branch by bisection to machine precision. Errors when the current
 /// exceeds [`space_charge_limited_current_a`], where no solution exists.
@@ -347,7 +373,8 @@ mod tests {
                 }
             }
         }
-        // physics.md §7: 147.6 µm at 1 A, 1 keV, 1 T non-relativistically; γ adds 0.2 %.
+        // Engineering rule (common practice): 147.6 µm at 1 A, 1 keV, 1 T non-relativistically;
+        // γ adds 0.2 %.
         assert!((brillouin_radius_m(1.0, 1e3, 1.0) * 1e6 - 147.9).abs() < 0.1);
     }
 

@@ -1,5 +1,12 @@
-//! Ion masses: m_ion = m_atom − q·m_e + B_q/c² with B_q the sum of the first q ionization
-//! energies (physics.md §11): the energy spent removing the electrons is given back as mass.
+//! Ion masses: m_ion = m_atom − q·m_e + B_q/c² with B_q = Σ_{j<q} IE_j the sum of the first
+//! q ionization energies: the energy spent removing the electrons is given back as mass.
+//!
+//! Atomic masses from AME2020 (M. Wang et al., Chin. Phys. C 45, 030003 (2021)), ionization
+//! energies from NIST ASD, m_e and u from CODATA 2018 (B_q in u is B_q[eV]/931494102.42).
+//! m/q in u per elementary charge; A/q with A the mass number. Valid for every tabulated
+//! isotope and charge 0…Z; accurate to the mass tables (the binding term, up to 8.2×10⁻⁴ u
+//! for bare uranium, is exact given the tabulated IEs). Checked against periodictable's
+//! masses, scipy.constants and mendeleev's IEs in `tests/python/test_spectrum.py`.
 
 use crate::atoms::{element_by_z, Isotope};
 use crate::constants::{ATOMIC_MASS_UNIT_EV, ELECTRON_MASS_U};

@@ -2,7 +2,12 @@
 //! window each fills, and what resolving power would separate them.
 //!
 //! Separation criterion: two peaks count as separated when their centres are at least one
-//! FWHM apart, so the resolving power needed is R = (m/q)/|Δ(m/q)| with the target's m/q.
+//! FWHM apart, so the resolving power needed is R = (m/q)/|Δ(m/q)| with the target's m/q
+//! (common practice). Contamination of the target by a line is that line's intensity times
+//! the share of its peak inside the target's acceptance window, relative to the target's
+//! own signal there; purity is the target's share of everything in the window. Both are
+//! exact for the idealised peak shapes of [`super::peaks`]; real separators add tails and
+//! background that they do not model.
 
 use std::cmp::Ordering;
 

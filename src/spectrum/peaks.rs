@@ -1,5 +1,13 @@
 //! Peak shapes on the m/q axis at a resolving power, and the share of a peak's area that
 //! falls inside a window.
+//!
+//! At resolving power R every peak's full width at half maximum is FWHM = (m/q)/R. Shapes:
+//! Gaussian (σ = FWHM/(2√(2 ln 2)); area in a window ½[erf(b) − erf(a)], taken from the far
+//! tail for distant interferers so they keep their relative precision), triangular (base
+//! 2·FWHM) and rectangular (width FWHM, an ideal slit). These are idealised instrument
+//! responses (common practice), not a model of a particular separator. erf and erfc follow
+//! Abramowitz & Stegun 7.1.6 and 7.1.14 and match scipy.special within 10⁻¹⁵ (erf,
+//! absolute) and 10⁻¹⁴ (erfc, relative) in the tests below.
 
 use crate::error::{require_positive, Error, Result};
 

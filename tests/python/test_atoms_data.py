@@ -115,7 +115,7 @@ def _xraydb_subshell_edge(z: int, subshell: str) -> float | None:
 
 @pytest.mark.parametrize("z", [6, 10, 18, 26, 36, 47, 54, 79, 92])
 def test_neutral_bindings_equal_xraydb_edges(z: int) -> None:
-    # Reference: xraydb.xray_edges (Elam, Ravel & Sieber 2002); rule max(edge, IE0), physics.md §2.
+    # Reference: xraydb.xray_edges (Elam, Ravel & Sieber 2002); rule max(edge, IE0) (atoms::binding).
     ion = cc.element(z).ion(0)
     ie0 = float(cc.element(z).ionization_energies_ev[0])
     for label, _occ, binding in ion.subshells():
@@ -126,7 +126,7 @@ def test_neutral_bindings_equal_xraydb_edges(z: int) -> None:
 
 
 def test_unscaled_coulomb_sum_predicts_xraydb_1s_binding() -> None:
-    # physics.md §2: IE_{q*} − W_{q*} reproduces the neutral 1s binding within 3 % for Z = 10–98
+    # atoms::binding: IE_{q*} − W_{q*} reproduces the neutral 1s binding within 3 % for Z = 10–98
     # (reference: xraydb K edges, Elam 2002). W from the tabulated IEs and ionized subshells.
     import xraydb
 
@@ -180,7 +180,7 @@ def test_carbon_12_is_exactly_12_u() -> None:
 
 
 def test_binding_energies_are_exact_at_both_ends() -> None:
-    # physics.md §2: exact at q = 0 and at q = q*(s) by construction.
+    # atoms::binding: exact at q = 0 and at q = q*(s) by construction.
     kr = cc.element("Kr")
     for q in range(36):
         ion = kr.ion(q)

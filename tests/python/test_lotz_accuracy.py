@@ -1,8 +1,8 @@
 """Lotz totals for neutral rare gases against measured total ionization cross sections.
 
-Measured values: Rapp & Englander-Golden, J. Chem. Phys. 43, 1464 (1965). The He value at
-100 eV (3.51e-17 cm²) is quoted in the project's physics sheet; every other value here is
-from memory of that paper's tables (about ±5 %). The ratios are the accuracy table in README.
+Measured values: Rapp & Englander-Golden, J. Chem. Phys. 43, 1464 (1965), all from memory of
+that paper's tables (about ±5 %; He at 100 eV: 3.51e-17 cm²). The ratios are the accuracy table
+in README.
 """
 
 from __future__ import annotations
@@ -15,8 +15,8 @@ import chargecast as cc
 CASES = [
     ("He", 100.0, 3.51e-17, (0.75, 1.25), "Lotz's fitted He 1s constants (Lotz 1967)"),
     ("He", 200.0, 3.3e-17, (0.75, 1.25), "Lotz's fitted He 1s constants (Lotz 1967)"),
-    ("Ne", 100.0, 0.69e-16, (1.5, 3.5), "simplified Lotz overestimates Ne 2p (known, physics.md §3)"),
-    ("Ne", 200.0, 0.80e-16, (1.2, 2.5), "simplified Lotz overestimates Ne 2p (known, physics.md §3)"),
+    ("Ne", 100.0, 0.69e-16, (1.5, 3.5), "simplified Lotz overestimates Ne 2p (known)"),
+    ("Ne", 200.0, 0.80e-16, (1.2, 2.5), "simplified Lotz overestimates Ne 2p (known)"),
     ("Ar", 100.0, 2.85e-16, (0.7, 1.4), "simplified Lotz"),
     ("Ar", 200.0, 2.45e-16, (0.7, 1.3), "simplified Lotz"),
     ("Kr", 100.0, 3.8e-16, (0.75, 1.25), "simplified Lotz"),
@@ -34,7 +34,7 @@ def test_lotz_total_against_rapp_englander_golden(element, energy_ev, measured_c
 
 def test_fitted_helium_beats_simplified_constants() -> None:
     # Same reference (Rapp & Englander-Golden 1965, He 3.51e-17 cm² at 100 eV): the fitted
-    # constants are closer than the simplified set (physics.md §3 notes ×1.46 for the latter).
+    # constants are closer than the simplified set (×1.46 for the latter, worked by hand).
     fitted = cc.lotz_cross_section_cm2("He", 0, 100.0)
     simplified = cc.lotz_cross_section_cm2("He", 0, 100.0, a=4.5e-14, b=0.0, c=0.0)
     assert abs(fitted / 3.51e-17 - 1) < abs(simplified / 3.51e-17 - 1)

@@ -83,7 +83,7 @@ def test_ionization_only_matches_the_bateman_closed_form() -> None:
 
 def test_breeding_time_matches_the_mean_arrival_time() -> None:
     # With ionization alone the mean time to arrive in q is Σ 1/λ_i (sum of exponential waits):
-    # the stepwise breeding time (physics sheet §4).
+    # the stepwise breeding time (sources::breeding).
     beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.2, radius_m=60e-6)
     trap = cc.BeamTrap(beam, 0.3, {}, 10.0, processes=("ionization",))
     lam = np.array([trap.rates("Ne")[q, q + 1] for q in range(8)])
@@ -228,7 +228,7 @@ def test_multiple_ionization_network_matches_scipy_expm() -> None:
 
 def test_multiple_ionization_keeps_the_lotz_total_and_adds_double() -> None:
     # Sum over final charges of the cascade-resolved rates = single-ionization Lotz rate
-    # (each subshell ionized once) + direct double ionization (physics sheet §10).
+    # (each subshell ionized once) + direct double ionization (processes::vacancy_jumps).
     beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.2, radius_m=60e-6)
     single = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization",)).rates("Ar")
     multi = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization", "multiple_ionization")).rates("Ar")
