@@ -778,7 +778,11 @@ class Report:
                     "threshold_ev": float(t),
                     "yield_per_photon": float(y),
                     "via": [
-                        {"subshell": x.subshell, "binding_ev": float(x.binding_ev), "probability": float(x.probability)}
+                        {
+                            "subshell": x.subshell,
+                            "binding_ev": float(x.binding_ev),
+                            "probability": float(x.probability),
+                        }
                         for x in routes
                     ],
                 }
