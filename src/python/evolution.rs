@@ -229,13 +229,13 @@ impl PyEvolution {
         let row = if self.times_s[k] == t || k == 0 {
             self.fractions.row(k).to_vec()
         } else {
+            // numpy.interp's arithmetic (slope × offset + left value), so results match it.
             let (t0, t1) = (self.times_s[k - 1], self.times_s[k]);
-            let w = (t - t0) / (t1 - t0);
             self.fractions
                 .row(k - 1)
                 .iter()
                 .zip(self.fractions.row(k))
-                .map(|(a, b)| a + w * (b - a))
+                .map(|(a, b)| (b - a) / (t1 - t0) * (t - t0) + a)
                 .collect()
         };
         Ok(to_py(py, row))
