@@ -36,31 +36,25 @@ from chargecast.atoms import (
     lotz_rate_coefficient_cm3_s,
 )
 
-# --- engine: electron beam, trap, evolution
-from chargecast.evolution import Evolution
-from chargecast.trap import (
-    BeamTrap,
+# --- electron beam, trap, evolution, general rate equations
+from chargecast.beam_trap import BeamTrap, EnergyScan, evolve_batch
+from chargecast.electron_beam import (
     ElectronBeam,
-    EnergyScan,
     brillouin_radius_m,
     effective_energy_ev,
-    evolve_batch,
     herrmann_radius_m,
-    solve_rate_equations,
-    steady_state_rate_equations,
 )
+from chargecast.evolution import Evolution
+from chargecast.rate_equations import solve_rate_equations, steady_state_rate_equations
 
-# --- photon and single-collision sources
+# --- photon beams and the single-collision electron-impact source
 # isort: split
-from chargecast.photon import (
-    AppearanceCurves,
-    ChargeYields,
-    ElectronImpactSource,
+from chargecast.electron_impact import AppearanceCurves, ChargeYields, ElectronImpactSource, appearance_curves
+from chargecast.photon_beam import (
     PhotonBeam,
     PhotonEnergyScan,
     PhotonSelectivity,
     PhotonThresholds,
-    appearance_curves,
     photoionization_cross_section_cm2,
     photon_selectivity,
     photon_thresholds,

@@ -58,20 +58,6 @@ def as_times(name: str, value: Any) -> np.ndarray:
     return arr
 
 
-def as_charges(value: Any) -> list[int]:
-    """One target charge state or a sequence of them, as a list of ints."""
-    if isinstance(value, (list, tuple, np.ndarray)):
-        return [as_int("charge", q) for q in value]
-    return [as_int("charge", value)]
-
-
-def element_symbol(element: Any) -> str:
-    """The symbol of an element given by symbol, name or Z."""
-    from chargecast import _core
-
-    return _core.element(element).symbol
-
-
 def require_pandas() -> Any:
     try:
         import pandas as pd

@@ -43,7 +43,7 @@ def element(value: str | int) -> _core.Element:
 def lotz_cross_section_cm2(
     element: str | int,
     charge: int,
-    energy_ev: Any,
+    energies_ev: Any,
     a: Optional[float] = None,
     b: Optional[float] = None,
     c: Optional[float] = None,
@@ -60,8 +60,8 @@ def lotz_cross_section_cm2(
         Symbol, name or Z.
     charge : int
         Charge state of the target ion, 0 … Z−1.
-    energy_ev : float or array_like
-        Electron energy (eV), > 0.
+    energies_ev : float or array_like
+        Electron energies (eV), > 0.
     a, b, c : float, optional
         Lotz constants for every subshell (a in cm² eV²). By default the simplified
         constants a = 4.5e-14, b = c = 0, with Lotz's fitted ones for H and He neutral.
@@ -69,7 +69,7 @@ def lotz_cross_section_cm2(
     Returns
     -------
     float or ndarray
-        Cross section (cm²), shaped like ``energy_ev``; 0 below threshold.
+        Cross section (cm²), shaped like ``energies_ev``; 0 below threshold.
 
     Examples
     --------
@@ -77,7 +77,7 @@ def lotz_cross_section_cm2(
     >>> float(s[0]), f"{s[1]:.3e}"
     (0.0, '8.286e-22')
     """
-    arr, shape = as_float_array("energy_ev", energy_ev)
+    arr, shape = as_float_array("energies_ev", energies_ev)
     out = _core.lotz_cross_section_cm2(element, as_int("charge", charge), arr, a=a, b=b, c=c)
     return restore(out, shape)
 
@@ -85,7 +85,7 @@ def lotz_cross_section_cm2(
 def lotz_rate_coefficient_cm3_s(
     element: str | int,
     charge: int,
-    temperature_ev: Any,
+    temperatures_ev: Any,
     a: Optional[float] = None,
     b: Optional[float] = None,
     c: Optional[float] = None,
@@ -100,15 +100,15 @@ def lotz_rate_coefficient_cm3_s(
         Symbol, name or Z.
     charge : int
         Charge state of the target ion, 0 … Z−1.
-    temperature_ev : float or array_like
-        Electron temperature kT (eV), > 0.
+    temperatures_ev : float or array_like
+        Electron temperatures kT (eV), > 0.
     a, b, c : float, optional
         Lotz constants, as in :func:`lotz_cross_section_cm2`.
 
     Returns
     -------
     float or ndarray
-        Rate coefficient (cm³ s⁻¹), shaped like ``temperature_ev``.
+        Rate coefficient (cm³ s⁻¹), shaped like ``temperatures_ev``.
 
     Examples
     --------
@@ -116,7 +116,7 @@ def lotz_rate_coefficient_cm3_s(
     >>> 1e-10 < k < 1e-8
     True
     """
-    arr, shape = as_float_array("temperature_ev", temperature_ev)
+    arr, shape = as_float_array("temperatures_ev", temperatures_ev)
     out = _core.lotz_rate_coefficient_cm3_s(element, as_int("charge", charge), arr, a=a, b=b, c=c)
     return restore(out, shape)
 
@@ -164,7 +164,7 @@ def breeding_time_s(
     charge: int,
     beam: Any = None,
     *,
-    energy_ev: Any = None,
+    energies_ev: Any = None,
     current_density_a_cm2: Optional[float] = None,
 ) -> Any:
     """Time to breed ``charge`` from the neutral by stepwise ionization alone.
@@ -180,8 +180,8 @@ def breeding_time_s(
         Target charge state, 0 … Z.
     beam : ElectronBeam, optional
         Supplies the energy and current density.
-    energy_ev : float or array_like, optional
-        Electron energy (eV); overrides the beam's energy (vectorised).
+    energies_ev : float or array_like, optional
+        Electron energies (eV); override the beam's energy (vectorised).
     current_density_a_cm2 : float, optional
         Current density (A/cm²) when no beam is given.
 
@@ -192,22 +192,22 @@ def breeding_time_s(
 
     Examples
     --------
-    >>> t = breeding_time_s("Ar", 16, energy_ev=[2000.0, 10000.0], current_density_a_cm2=500.0)
+    >>> t = breeding_time_s("Ar", 16, energies_ev=[2000.0, 10000.0], current_density_a_cm2=500.0)
     >>> bool(t[0] < t[1])
     True
     """
     j = _current_density(beam, current_density_a_cm2)
-    if energy_ev is None:
+    if energies_ev is None:
         if beam is None:
             from chargecast._core import InvalidParameterError
 
-            raise InvalidParameterError("give energy_ev or a beam")
-        energy_ev = beam.energy_ev
-    arr, shape = as_float_array("energy_ev", energy_ev)
+            raise InvalidParameterError("give energies_ev or a beam")
+        energies_ev = beam.energy_ev
+    arr, shape = as_float_array("energies_ev", energies_ev)
     return restore(_core._breeding_time_s(element, as_int("charge", charge), arr, j), shape)
 
 
-def j_tau_c_cm2(element: str | int, charge: int, energy_ev: Any) -> Any:
+def j_tau_c_cm2(element: str | int, charge: int, energies_ev: Any) -> Any:
     """Ionization factor jτ needed to reach ``charge`` by stepwise ionization alone.
 
     jτ_q = e·Σ_{i<q} 1/σ_i(E), independent of the current density.
@@ -218,8 +218,8 @@ def j_tau_c_cm2(element: str | int, charge: int, energy_ev: Any) -> Any:
         Symbol, name or Z.
     charge : int
         Target charge state, 0 … Z.
-    energy_ev : float or array_like
-        Electron energy (eV), > 0.
+    energies_ev : float or array_like
+        Electron energies (eV), > 0.
 
     Returns
     -------
@@ -231,7 +231,7 @@ def j_tau_c_cm2(element: str | int, charge: int, energy_ev: Any) -> Any:
     >>> round(j_tau_c_cm2("Ar", 18, 1e4) - j_tau_c_cm2("Ar", 17, 1e4))
     193
     """
-    arr, shape = as_float_array("energy_ev", energy_ev)
+    arr, shape = as_float_array("energies_ev", energies_ev)
     # jτ is the breeding time at a current density of 1 A/cm² (τ = jτ/j), in C/cm².
     return restore(_core._breeding_time_s(element, as_int("charge", charge), arr, 1.0), shape)
 

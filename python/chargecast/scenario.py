@@ -249,7 +249,8 @@ class Scenario:
         kind = s["kind"]
         try:
             if kind == "trap":
-                from chargecast.trap import BeamTrap, ElectronBeam
+                from chargecast.beam_trap import BeamTrap
+                from chargecast.electron_beam import ElectronBeam
 
                 size = {
                     k: s[k]
@@ -266,8 +267,8 @@ class Scenario:
                 return BeamTrap(
                     beam,
                     s["length_m"],
-                    dict(self.residual_gas_pa),
-                    s["ion_temperature_ev"],
+                    residual_gas_pa=dict(self.residual_gas_pa),
+                    ion_temperature_ev=s["ion_temperature_ev"],
                     gas_temperature_k=s["gas_temperature_k"],
                     compensation=s["compensation"],
                     processes=tuple(s["processes"]),
@@ -330,7 +331,7 @@ class _Runner:
         tsym, q = s.target["symbol"], int(s.target["charge"])
         r.ladder = self.ladder(source)
         if kind == "photon_beam":
-            from chargecast.photon import photon_thresholds
+            from chargecast.photon_beam import photon_thresholds
 
             r.thresholds = photon_thresholds(tsym, float(s.source["photon_energy_ev"]))
         if kind == "single_collision":
@@ -357,7 +358,7 @@ class _Runner:
         j = float(source.beam.current_density_a_cm2) if kind == "trap" else 1.0
         lad: dict[str, Any]
         if kind == "photon_beam":
-            from chargecast.photon import photoionization_cross_section_cm2
+            from chargecast.photon_beam import photoionization_cross_section_cm2
 
             flux = float(s.source["flux_cm2_s"])
             sigma = np.array(
@@ -462,25 +463,10 @@ class _Runner:
         if own is not None and energies[0] <= own <= energies[-1]:
             # The scenario's own setting is always on the grid, so "best" is never worse than it.
             energies = np.unique(np.append(energies, float(own)))
-        chunks = np.array_split(energies, max(1, min(len(energies), 8)))
-        scans = []
-        for k, chunk in enumerate(chunks):
-            self.progress(k, len(chunks), "energy scan")
-            scans.append(source.best_energy(symbol, q, chunk, times))
-        self.progress(len(chunks), len(chunks), "energy scan")
-        fraction = np.vstack([sc.fraction for sc in scans])
-        i, j = np.unravel_index(int(np.argmax(fraction)), fraction.shape)
-        # Same result class as the source's own best_energy (EnergyScan or its photon variant).
-        return type(scans[0])(
-            symbol,
-            [q],
-            energies,
-            times,
-            fraction,
-            float(energies[i]),
-            float(times[j]),
-            float(fraction[i, j]),
-        )
+        self.progress(0, 1, "energy scan")
+        scan = source.best_energy(symbol, q, energies, times)
+        self.progress(1, 1, "energy scan")
+        return scan
 
     # -- single collision: yields and appearance curves
     def single_collision(self, r: Report, source: Any) -> None:
@@ -591,9 +577,9 @@ def _isotope_share(species: dict[str, Any], target: dict[str, Any]) -> float:
     from chargecast.atoms import element
 
     isotopes: Any = element(species["symbol"]).isotopes()
-    for a, _mass_u, ab in isotopes:
-        if int(a) == int(target["mass_number"]):
-            return float(ab or 0.0)
+    for iso in isotopes:
+        if int(iso.mass_number) == int(target["mass_number"]):
+            return float(iso.abundance or 0.0)
     return 0.0
 
 
@@ -792,8 +778,12 @@ class Report:
                     "threshold_ev": float(t),
                     "yield_per_photon": float(y),
                     "via": [
-                        {"subshell": sh, "binding_ev": float(b), "probability": float(p)}
-                        for sh, b, p in routes
+                        {
+                            "subshell": x.subshell,
+                            "binding_ev": float(x.binding_ev),
+                            "probability": float(x.probability),
+                        }
+                        for x in routes
                     ],
                 }
                 for q, t, y, routes in zip(th.charges, th.threshold_ev, th.yield_per_photon, th.routes)
@@ -1311,7 +1301,7 @@ class _TextReport:
                 f"{q}+",
                 f"{t:.6g}",
                 _g(float(y), ".3g"),
-                ", ".join(f"{sh} ({p:.2g})" for sh, _, p in routes) or "–",
+                ", ".join(f"{x.subshell} ({x.probability:.2g})" for x in routes) or "–",
             ]
             for q, t, y, routes in zip(th.charges, th.threshold_ev, th.yield_per_photon, th.routes)
             if y >= 1e-4

@@ -137,6 +137,13 @@ impl RateNetwork {
             .any(|&v| v > 0.0)
     }
 
+    /// The transition rates as a matrix `rates[from, to]` (s⁻¹), zero on the diagonal: the
+    /// form a user reads and passes back to a general solver.
+    pub fn rate_matrix(&self) -> Array2<f64> {
+        let n = self.n_states;
+        Array2::from_shape_fn((n, n), |(from, to)| self.rates_per_s[from * n + to])
+    }
+
     /// The generator M[to, from]; every column sums to minus the loss of its state.
     pub fn generator(&self) -> Array2<f64> {
         let n = self.n_states;
@@ -226,6 +233,12 @@ mod tests {
             assert!((sum + loss).abs() < 1e-15, "column {col}: {sum}");
         }
         assert_eq!(m[[1, 0]], 3.0);
+        let r = net.rate_matrix();
+        assert_eq!(
+            (r[[0, 1]], r[[0, 3]], r[[2, 1]], r[[1, 0]]),
+            (3.0, 5.0, 0.5, 0.0)
+        );
+        assert!((0..4).all(|q| r[[q, q]] == 0.0));
         assert_eq!(net.max_jump_up(), 3);
         assert_eq!(net.max_jump_down(), 1);
         assert_eq!(net.feed_per_s(), &[7.0, 0.0, 0.0, 0.0]);

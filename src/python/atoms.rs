@@ -87,27 +87,31 @@ impl PyElement {
             .configuration()
             .label())
     }
-    /// (mass_number, mass_u, abundance or None) of every isotope with a measured mass.
-    fn isotopes(&self) -> Vec<(u32, f64, Option<f64>)> {
+    /// Every isotope with a measured mass: ``mass_number``, ``mass_u``, ``abundance`` (None
+    /// for isotopes without a natural abundance).
+    fn isotopes(&self) -> Vec<PyIsotope> {
         self.inner
             .isotopes()
             .iter()
-            .map(|i| (i.mass_number, i.mass_u, i.abundance))
+            .map(|i| PyIsotope {
+                mass_number: i.mass_number,
+                mass_u: i.mass_u,
+                abundance: i.abundance,
+            })
             .collect()
     }
-    /// (edge, subshell, binding_ev, jump_ratio, fluorescence_yield) of the neutral atom.
-    fn xray_levels(&self) -> Vec<(String, String, f64, f64, f64)> {
+    /// X-ray absorption edges of the neutral atom: ``edge``, ``subshell``, ``binding_ev``,
+    /// ``jump_ratio``, ``fluorescence_yield``.
+    fn xray_levels(&self) -> Vec<PyXrayLevel> {
         self.inner
             .xray_levels()
             .iter()
-            .map(|l| {
-                (
-                    l.edge.clone(),
-                    l.subshell.label(),
-                    l.binding_ev,
-                    l.jump_ratio,
-                    l.fluorescence_yield,
-                )
+            .map(|l| PyXrayLevel {
+                edge: l.edge.clone(),
+                subshell: l.subshell.label(),
+                binding_ev: l.binding_ev,
+                jump_ratio: l.jump_ratio,
+                fluorescence_yield: l.fluorescence_yield,
             })
             .collect()
     }
@@ -122,6 +126,49 @@ impl PyElement {
     }
     fn __hash__(&self) -> u64 {
         self.inner.z() as u64
+    }
+}
+
+/// One isotope: mass number, atomic mass (u) and natural abundance (None if not natural).
+#[pyclass(name = "Isotope", module = "chargecast", frozen, get_all)]
+pub(crate) struct PyIsotope {
+    mass_number: u32,
+    mass_u: f64,
+    abundance: Option<f64>,
+}
+
+#[pymethods]
+impl PyIsotope {
+    fn __repr__(&self) -> String {
+        let ab = self
+            .abundance
+            .map(|a| a.to_string())
+            .unwrap_or_else(|| "None".into());
+        format!(
+            "Isotope(mass_number={}, mass_u={}, abundance={ab})",
+            self.mass_number, self.mass_u
+        )
+    }
+}
+
+/// One X-ray absorption edge of a neutral atom: edge name, subshell, binding energy (eV),
+/// edge jump ratio and fluorescence yield.
+#[pyclass(name = "XrayLevel", module = "chargecast", frozen, get_all)]
+pub(crate) struct PyXrayLevel {
+    edge: String,
+    subshell: String,
+    binding_ev: f64,
+    jump_ratio: f64,
+    fluorescence_yield: f64,
+}
+
+#[pymethods]
+impl PyXrayLevel {
+    fn __repr__(&self) -> String {
+        format!(
+            "XrayLevel(edge={:?}, subshell={:?}, binding_ev={})",
+            self.edge, self.subshell, self.binding_ev
+        )
     }
 }
 
@@ -219,18 +266,18 @@ fn constants(a: Option<f64>, b: Option<f64>, c: Option<f64>) -> Option<LotzConst
 }
 
 #[pyfunction]
-#[pyo3(signature = (element, charge, energy_ev, a=None, b=None, c=None))]
+#[pyo3(signature = (element, charge, energies_ev, a=None, b=None, c=None))]
 fn lotz_cross_section_cm2<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     charge: i64,
-    energy_ev: PyReadonlyArray1<'py, f64>,
+    energies_ev: PyReadonlyArray1<'py, f64>,
     a: Option<f64>,
     b: Option<f64>,
     c: Option<f64>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let energies = vec_arg(&energy_ev);
+    let energies = vec_arg(&energies_ev);
     let out = guard(py, || {
         ionization_cross_sections_cm2(el, charge, &energies, constants(a, b, c))
     })?;
@@ -238,18 +285,18 @@ fn lotz_cross_section_cm2<'py>(
 }
 
 #[pyfunction]
-#[pyo3(signature = (element, charge, temperature_ev, a=None, b=None, c=None))]
+#[pyo3(signature = (element, charge, temperatures_ev, a=None, b=None, c=None))]
 fn lotz_rate_coefficient_cm3_s<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     charge: i64,
-    temperature_ev: PyReadonlyArray1<'py, f64>,
+    temperatures_ev: PyReadonlyArray1<'py, f64>,
     a: Option<f64>,
     b: Option<f64>,
     c: Option<f64>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let temps = vec_arg(&temperature_ev);
+    let temps = vec_arg(&temperatures_ev);
     let out = guard(py, || {
         ionization_rate_coefficients_cm3_s(el, charge, &temps, constants(a, b, c))
     })?;
@@ -274,20 +321,20 @@ fn lotz_peak_energy_ev(
 
 /// Ionization-only breeding time (s) to reach `charge`, one value per energy.
 #[pyfunction]
-#[pyo3(signature = (element, charge, energy_ev, current_density_a_cm2, a=None, b=None, c=None))]
+#[pyo3(signature = (element, charge, energies_ev, current_density_a_cm2, a=None, b=None, c=None))]
 #[allow(clippy::too_many_arguments)]
 fn _breeding_time_s<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     charge: i64,
-    energy_ev: PyReadonlyArray1<'py, f64>,
+    energies_ev: PyReadonlyArray1<'py, f64>,
     current_density_a_cm2: f64,
     a: Option<f64>,
     b: Option<f64>,
     c: Option<f64>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let energies = vec_arg(&energy_ev);
+    let energies = vec_arg(&energies_ev);
     let k = constants(a, b, c);
     let out = guard(py, || {
         energies
@@ -340,6 +387,8 @@ fn _breeding_ladder<'py>(
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyElement>()?;
     m.add_class::<PyIon>()?;
+    m.add_class::<PyIsotope>()?;
+    m.add_class::<PyXrayLevel>()?;
     m.add_function(wrap_pyfunction!(element, m)?)?;
     m.add_function(wrap_pyfunction!(lotz_cross_section_cm2, m)?)?;
     m.add_function(wrap_pyfunction!(lotz_rate_coefficient_cm3_s, m)?)?;

@@ -68,6 +68,14 @@ pub(crate) fn vec_arg(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
 
 /// A whole number from Python (bool and non-integers rejected with a clear message).
 pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<i64> {
+    // numpy integers are whole numbers too: they convert through __index__.
+    if !value.is_instance_of::<PyBool>() && !value.is_instance_of::<PyInt>() {
+        if let Ok(index) = value.call_method0("__index__") {
+            if index.is_instance_of::<PyInt>() {
+                return int_arg(name, &index);
+            }
+        }
+    }
     if value.is_instance_of::<PyBool>() || !value.is_instance_of::<PyInt>() {
         let shown = value
             .repr()
@@ -114,19 +122,137 @@ pub(crate) fn charges_arg(element: &Element, charges: &[i64]) -> Result<Vec<u32>
         .collect()
 }
 
-/// An energy × time map as a dict: `fraction` [energies, times] and the best point.
-pub(crate) fn energy_map_to_py<'py>(
-    py: Python<'py>,
-    map: crate::sources::energy_map::EnergyTimeMap,
-) -> PyResult<Bound<'py, pyo3::types::PyDict>> {
-    let (rows, cols) = (map.fraction.len(), map.times_s.len());
-    let flat: Vec<f64> = map.fraction.into_iter().flatten().collect();
-    let arr = ndarray::Array2::from_shape_vec((rows, cols), flat)
-        .map_err(|e| Error::invalid("grid", e, "internal shape error"))?;
-    let d = pyo3::types::PyDict::new(py);
-    d.set_item("fraction", matrix_to_py(py, arr))?;
-    d.set_item("best_energy_ev", map.best_energy_ev)?;
-    d.set_item("best_time_s", map.best_time_s)?;
-    d.set_item("best_fraction", map.best_fraction)?;
-    Ok(d)
+/// Any array-like of numbers as a C-contiguous float64 numpy array (numpy does the reading).
+fn float_ndarray<'py>(name: &str, value: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyAny>> {
+    let py = value.py();
+    let np = py.import("numpy")?;
+    let kwargs = pyo3::types::PyDict::new(py);
+    kwargs.set_item("dtype", "float64")?;
+    np.getattr("ascontiguousarray")?
+        .call((value,), Some(&kwargs))
+        .map_err(|_| {
+            let shown = value
+                .repr()
+                .map(|r| r.to_string())
+                .unwrap_or_else(|_| "?".into());
+            Error::invalid(name, shown, "must be an array of numbers").into()
+        })
+}
+
+/// A 1-D array of numbers from any array-like (a scalar gives one value).
+pub(crate) fn array1_arg(name: &str, value: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
+    let arr = float_ndarray(name, value)?;
+    let flat = arr.call_method0("ravel")?;
+    let a: PyReadonlyArray1<'_, f64> = flat.extract()?;
+    Ok(vec_arg(&a))
+}
+
+/// A 2-D array of numbers from any array-like.
+pub(crate) fn array2_arg(name: &str, value: &Bound<'_, PyAny>) -> PyResult<ndarray::Array2<f64>> {
+    let arr = float_ndarray(name, value)?;
+    let a: numpy::PyReadonlyArray2<'_, f64> = arr.extract().map_err(|_| {
+        let shape = arr
+            .getattr("shape")
+            .and_then(|s| s.repr())
+            .map(|r| r.to_string())
+            .unwrap_or_else(|_| "?".into());
+        PyErr::from(Error::invalid(
+            name,
+            format!("shape {shape}"),
+            "must be two-dimensional",
+        ))
+    })?;
+    Ok(a.as_array().to_owned())
+}
+
+/// A number written as Python's ``format(x, f".{sig}g")`` writes it, for labels and reprs.
+pub(crate) fn fmt_g(x: f64, sig: usize) -> String {
+    if !x.is_finite() {
+        return if x.is_nan() {
+            "nan".into()
+        } else if x > 0.0 {
+            "inf".into()
+        } else {
+            "-inf".into()
+        };
+    }
+    if x == 0.0 {
+        return "0".into();
+    }
+    let sig = sig.max(1);
+    let e = format!("{:.*e}", sig - 1, x);
+    let (mantissa, exp) = e.split_once('e').unwrap_or((&e, "0"));
+    let exp: i32 = exp.parse().unwrap_or(0);
+    let trim = |s: &str| -> String {
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s.to_string()
+        }
+    };
+    if exp < -4 || exp >= sig as i32 {
+        let sign = if exp < 0 { '-' } else { '+' };
+        format!("{}e{}{:02}", trim(mantissa), sign, exp.abs())
+    } else {
+        let decimals = (sig as i32 - 1 - exp).max(0) as usize;
+        trim(&format!("{:.*}", decimals, x))
+    }
+}
+
+/// Output times (s) from any 1-D array-like (the core checks order and sign).
+pub(crate) fn times_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
+    let arr = float_ndarray("times_s", value)?;
+    let ndim: usize = arr.getattr("ndim")?.extract()?;
+    if ndim > 1 {
+        let shape = arr.getattr("shape")?.repr()?.to_string();
+        return Err(Error::invalid(
+            "times_s",
+            format!("shape {shape}"),
+            "must be one-dimensional",
+        )
+        .into());
+    }
+    array1_arg("times_s", &arr)
+}
+
+/// One target charge state or a sequence of them.
+pub(crate) fn charge_list_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<i64>> {
+    if value.is_instance_of::<pyo3::types::PyList>()
+        || value.is_instance_of::<pyo3::types::PyTuple>()
+        || value.hasattr("ndim")?
+    {
+        value
+            .try_iter()?
+            .map(|q| Ok(int_arg("charge", &q?)?))
+            .collect()
+    } else {
+        Ok(vec![int_arg("charge", value)?])
+    }
+}
+
+/// A Python object's type name, for messages.
+pub(crate) fn type_name(value: &Bound<'_, PyAny>) -> String {
+    value
+        .get_type()
+        .name()
+        .map(|n| n.to_string())
+        .unwrap_or_else(|_| "?".into())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::fmt_g;
+
+    #[test]
+    fn fmt_g_writes_like_python() {
+        // Expected strings from CPython's format(x, "g") / format(x, ".3g").
+        assert_eq!(fmt_g(8000.0, 6), "8000");
+        assert_eq!(fmt_g(1e-8, 6), "1e-08");
+        assert_eq!(fmt_g(6366.197723675814, 3), "6.37e+03");
+        assert_eq!(fmt_g(0.5, 6), "0.5");
+        assert_eq!(fmt_g(1e22, 6), "1e+22");
+        assert_eq!(fmt_g(123456789.0, 6), "1.23457e+08");
+        assert_eq!(fmt_g(0.0001, 6), "0.0001");
+        assert_eq!(fmt_g(-2.5, 3), "-2.5");
+    }
 }

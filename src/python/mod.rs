@@ -4,10 +4,16 @@
 use pyo3::prelude::*;
 
 mod atoms;
+mod beam;
+mod beam_trap;
 mod convert;
-mod engine;
+mod electron_impact;
+mod energy_scan;
 mod errors;
-mod photon;
+mod evolution;
+mod photon_beam;
+mod rate_equations;
+mod results;
 mod scenario;
 mod spectrum;
 
@@ -19,8 +25,14 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     errors::register(m)?;
     atoms::register(m)?;
-    engine::register(m)?;
-    photon::register(m)?;
+    results::register(m)?;
+    beam::register(m)?;
+    beam_trap::register(m)?;
+    rate_equations::register(m)?;
+    evolution::register(m)?;
+    energy_scan::register(m)?;
+    photon_beam::register(m)?;
+    electron_impact::register(m)?;
     spectrum::register(m)?;
     scenario::register(m)?;
     Ok(())

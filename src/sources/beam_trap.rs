@@ -49,6 +49,13 @@ use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
 use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 
+/// Ion temperature kT (eV) of a trap when none is given.
+pub const DEFAULT_ION_TEMPERATURE_EV: f64 = 50.0;
+/// Residual-gas temperature (K) of a trap when none is given (room temperature).
+pub const DEFAULT_GAS_TEMPERATURE_K: f64 = 300.0;
+/// Fraction of the electron space charge compensated by ions when none is given.
+pub const DEFAULT_COMPENSATION: f64 = 0.5;
+
 /// One residual-gas component.
 #[derive(Clone, Debug)]
 pub struct GasComponent {
@@ -76,6 +83,58 @@ impl Default for Processes {
             radiative_recombination: true,
             charge_exchange: true,
         }
+    }
+}
+
+impl Processes {
+    /// Names of the processes a trap can include, in the order the network adds them.
+    pub const NAMES: [&'static str; 4] = [
+        "ionization",
+        "radiative_recombination",
+        "charge_exchange",
+        "multiple_ionization",
+    ];
+
+    /// The set named by `names` (each one of [`Processes::NAMES`]); the others are off.
+    pub fn from_names<S: AsRef<str>>(names: &[S]) -> Result<Self> {
+        let mut p = Processes {
+            ionization: false,
+            multiple_ionization: false,
+            radiative_recombination: false,
+            charge_exchange: false,
+        };
+        for name in names {
+            match name.as_ref() {
+                "ionization" => p.ionization = true,
+                "radiative_recombination" => p.radiative_recombination = true,
+                "charge_exchange" => p.charge_exchange = true,
+                "multiple_ionization" => p.multiple_ionization = true,
+                other => {
+                    return Err(Error::invalid(
+                        "processes",
+                        format!("{other:?}"),
+                        &format!("each must be one of \"{}\"", Self::NAMES.join("\", \"")),
+                    ))
+                }
+            }
+        }
+        Ok(p)
+    }
+
+    /// The names of the processes that are on.
+    pub fn names(&self) -> Vec<&'static str> {
+        let on = [
+            self.ionization,
+            self.radiative_recombination,
+            self.charge_exchange,
+            self.multiple_ionization,
+        ];
+        Self::NAMES
+            .iter()
+            .zip(on)
+            .filter(|(_, on)| *on)
+            .map(|(n, _)| *n)
+            .collect()
     }
 }
 
@@ -127,8 +186,8 @@ impl BeamTrap {
             length_m,
             residual_gas,
             ion_temperature_ev,
-            gas_temperature_k: 300.0,
-            compensation: 0.5,
+            gas_temperature_k: DEFAULT_GAS_TEMPERATURE_K,
+            compensation: DEFAULT_COMPENSATION,
             lotz_constants: None,
             processes: Processes::default(),
             loss_per_s: Vec::new(),
@@ -145,8 +204,9 @@ impl BeamTrap {
         Ok(t)
     }
 
-    /// Check the optional settings against an element.
-    fn check(&self, element: &Element) -> Result<()> {
+    /// Check the settings that do not depend on an element: gas temperature, compensation,
+    /// escape rates and the feed rate.
+    pub fn check_settings(&self) -> Result<()> {
         require_positive("gas_temperature_k", self.gas_temperature_k)?;
         if !(0.0..=1.0).contains(&self.compensation) {
             return Err(Error::invalid(
@@ -155,6 +215,18 @@ impl BeamTrap {
                 "must lie in 0..=1",
             ));
         }
+        for (q, loss) in self.loss_per_s.iter().enumerate() {
+            require_non_negative(&format!("loss_per_s[{q}]"), *loss)?;
+        }
+        if let Some((_, rate)) = self.feed {
+            require_non_negative("feed_per_s", rate)?;
+        }
+        Ok(())
+    }
+
+    /// Check the settings against an element.
+    fn check(&self, element: &Element) -> Result<()> {
+        self.check_settings()?;
         let n = element.z() as usize + 1;
         if !self.loss_per_s.is_empty() && self.loss_per_s.len() != n {
             return Err(Error::invalid(
@@ -166,9 +238,8 @@ impl BeamTrap {
                 ),
             ));
         }
-        if let Some((q, rate)) = self.feed {
+        if let Some((q, _)) = self.feed {
             element.check_charge(q as i64, element.z())?;
-            require_non_negative("feed_per_s", rate)?;
         }
         Ok(())
     }
@@ -323,13 +394,7 @@ impl BeamTrap {
     /// the trap filled with ions until their charge compensates the fraction f of the
     /// electron space charge, shared as the fractions say (neutrals are not trapped).
     pub fn ions_per_extraction(&self, fractions: &[f64]) -> Result<Vec<f64>> {
-        if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid(
-                "compensation",
-                self.compensation,
-                "must lie in 0..=1",
-            ));
-        }
+        self.check_settings()?;
         let charge_sum: f64 = fractions
             .iter()
             .enumerate()
@@ -361,6 +426,100 @@ impl BeamTrap {
         energy_time_map(element, targets, "energies_ev", energies_ev, times_s, |e| {
             self.with_energy(e)?.evolve(element, times_s, 0)
         })
+    }
+}
+
+/// Every setting of a trap with its default, for building one in a single validated step
+/// (the bindings and the scenario settings use it, so each rule is checked in one place).
+#[derive(Clone, Debug)]
+pub struct BeamTrapBuilder {
+    beam: ElectronBeam,
+    length_m: f64,
+    residual_gas_pa: Vec<(String, f64)>,
+    ion_temperature_ev: f64,
+    gas_temperature_k: f64,
+    compensation: f64,
+    processes: Processes,
+    loss_per_s: Vec<f64>,
+    feed: Option<(u32, f64)>,
+    photon_beam: Option<PhotonBeam>,
+}
+
+impl BeamTrap {
+    /// A builder for a trap of this beam and length; every other setting has its default.
+    pub fn builder(beam: ElectronBeam, length_m: f64) -> BeamTrapBuilder {
+        BeamTrapBuilder {
+            beam,
+            length_m,
+            residual_gas_pa: Vec::new(),
+            ion_temperature_ev: DEFAULT_ION_TEMPERATURE_EV,
+            gas_temperature_k: DEFAULT_GAS_TEMPERATURE_K,
+            compensation: DEFAULT_COMPENSATION,
+            processes: Processes::default(),
+            loss_per_s: Vec::new(),
+            feed: None,
+            photon_beam: None,
+        }
+    }
+}
+
+impl BeamTrapBuilder {
+    /// Partial pressures (Pa) of residual gases by formula.
+    pub fn residual_gas_pa(mut self, gases: Vec<(String, f64)>) -> Self {
+        self.residual_gas_pa = gases;
+        self
+    }
+    /// Ion temperature kT (eV).
+    pub fn ion_temperature_ev(mut self, value: f64) -> Self {
+        self.ion_temperature_ev = value;
+        self
+    }
+    /// Residual-gas temperature (K).
+    pub fn gas_temperature_k(mut self, value: f64) -> Self {
+        self.gas_temperature_k = value;
+        self
+    }
+    /// Compensated fraction of the electron space charge (0…1).
+    pub fn compensation(mut self, value: f64) -> Self {
+        self.compensation = value;
+        self
+    }
+    /// The processes of the network.
+    pub fn processes(mut self, processes: Processes) -> Self {
+        self.processes = processes;
+        self
+    }
+    /// Escape rate of each charge state 0…Z (s⁻¹).
+    pub fn loss_per_s(mut self, loss: Vec<f64>) -> Self {
+        self.loss_per_s = loss;
+        self
+    }
+    /// Continuous injection of charge state `charge` at `rate_per_s`.
+    pub fn feed(mut self, charge: u32, rate_per_s: f64) -> Self {
+        self.feed = Some((charge, rate_per_s));
+        self
+    }
+    /// A photon beam crossing the trapped ions.
+    pub fn photon_beam(mut self, beam: PhotonBeam) -> Self {
+        self.photon_beam = Some(beam);
+        self
+    }
+    /// The trap, with every setting validated.
+    pub fn build(self) -> Result<BeamTrap> {
+        let mut trap = BeamTrap::new(
+            self.beam,
+            self.length_m,
+            &self.residual_gas_pa,
+            self.ion_temperature_ev,
+        )?;
+        trap.gas_temperature_k = self.gas_temperature_k;
+        trap.compensation = self.compensation;
+        trap.processes = self.processes;
+        trap.loss_per_s = self.loss_per_s;
+        trap.feed = self.feed;
+        trap.photon_beam = self.photon_beam;
+        trap.check_settings()?;
+        Ok(trap)
     }
 }
 
@@ -452,6 +611,35 @@ mod tests {
         // A K-shell hole in neutral krypton relaxes to several charges: jumps beyond q+2 exist.
         let net = t.network(kr).unwrap();
         assert!(net.max_jump_up() > 2);
+    }
+
+    #[test]
+    fn the_builder_validates_every_setting() {
+        let beam = || ElectronBeam::with_radius(5000.0, 0.2, 60e-6).unwrap();
+        let t = BeamTrap::builder(beam(), 0.5).build().unwrap();
+        assert_eq!(t.ion_temperature_ev, DEFAULT_ION_TEMPERATURE_EV);
+        assert_eq!(t.compensation, DEFAULT_COMPENSATION);
+        for bad in [
+            BeamTrap::builder(beam(), 0.5).compensation(1.5),
+            BeamTrap::builder(beam(), 0.5).gas_temperature_k(0.0),
+            BeamTrap::builder(beam(), 0.5).loss_per_s(vec![1.0, -1.0]),
+            BeamTrap::builder(beam(), 0.5).feed(1, f64::NAN),
+            BeamTrap::builder(beam(), 0.0),
+        ] {
+            assert!(matches!(bad.build(), Err(Error::InvalidParameter { .. })));
+        }
+    }
+
+    #[test]
+    fn processes_by_name() {
+        let p = Processes::from_names(&["ionization", "charge_exchange"]).unwrap();
+        assert!(p.ionization && p.charge_exchange && !p.radiative_recombination);
+        assert_eq!(p.names(), vec!["ionization", "charge_exchange"]);
+        assert_eq!(
+            Processes::default().names(),
+            vec!["ionization", "radiative_recombination", "charge_exchange"]
+        );
+        assert!(Processes::from_names(&["fusion"]).is_err());
     }
 
     #[test]

@@ -119,19 +119,6 @@ impl PhotonBeam {
         Ok(nonzero_jumps(vacancy_jumps(&ion, rates_per_subshell)?))
     }
 
-    /// The jump-rate matrix [from, to] (s⁻¹), (Z+1)×(Z+1).
-    pub fn rate_matrix_per_s(&self, element: &'static Element) -> Result<Array2<f64>> {
-        let net = photon_network(element, self, None)?;
-        let n = net.n_states();
-        let mut m = Array2::zeros((n, n));
-        for from in 0..n {
-            for (to, r) in net.rates_from(from).iter().enumerate() {
-                m[[from, to]] = *r;
-            }
-        }
-        Ok(m)
-    }
-
     /// Charge-state fractions [times, Z+1] of atoms that start as `initial_charge` at t = 0.
     pub fn evolve(
         &self,

@@ -44,7 +44,21 @@ def test_public_callables_have_examples(name, obj) -> None:
         assert ">>>" in doc, f"{name} has no example"
 
 
-@pytest.mark.parametrize("cls", [cc.Element, cc.Ion, cc.ElectronBeam])
+@pytest.mark.parametrize(
+    "cls",
+    [
+        cc.Element,
+        cc.Ion,
+        cc.ElectronBeam,
+        cc.BeamTrap,
+        cc.PhotonBeam,
+        cc.ElectronImpactSource,
+        cc.evolve_batch,
+        cc.photon_thresholds,
+        cc.photon_selectivity,
+        cc.appearance_curves,
+    ],
+)
 def test_compiled_class_examples_run(cls) -> None:
     finder = doctest.DocTestFinder(recurse=False)
     runner = doctest.DocTestRunner(optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)

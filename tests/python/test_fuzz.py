@@ -64,7 +64,7 @@ def test_lotz(value, charge, energy) -> None:
 @FAST
 @given(ELEMENTS, CHARGES, ENERGIES, ANY_SCALAR)
 def test_breeding(value, charge, energy, density) -> None:
-    _call(cc.breeding_time_s, value, charge, energy_ev=energy, current_density_a_cm2=density)
+    _call(cc.breeding_time_s, value, charge, energies_ev=energy, current_density_a_cm2=density)
     _call(cc.breeding_ladder, value, charge, energy, density)
 
 
@@ -90,7 +90,7 @@ def test_trap(gas, length, times) -> None:
     beam = cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6)
 
     def f():
-        trap = cc.BeamTrap(beam, length, gas, 30.0)
+        trap = cc.BeamTrap(beam, length, residual_gas_pa=gas, ion_temperature_ev=30.0)
         trap.evolve("Ne", times)
 
     _call(f)
@@ -120,13 +120,15 @@ def test_rate_equations(matrix_and_initial, times) -> None:
 @given(CHARGES, CHARGES, st.one_of(st.tuples(CHARGES, ANY_SCALAR), ANY_SCALAR), ELEMENTS)
 def test_trap_charges_and_feed(initial, target, feed, element) -> None:
     beam = cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6)
-    trap = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 30.0)
+    trap = cc.BeamTrap(beam, 0.5, residual_gas_pa={"H2": 1e-9}, ion_temperature_ev=30.0)
     _call(trap.evolve, element, [0.0, 1e-3], initial_charge=initial)
     _call(trap.best_energy, element, target, [1000.0, 3000.0], [1e-3])
     _call(trap.steady_state, element)
     _call(trap.ions_per_extraction, [initial, target])
 
     def with_feed():
-        cc.BeamTrap(beam, 0.5, {}, 30.0, feed=feed, loss_per_s=[1.0] * 11).evolve("Ne", [1e-3])
+        cc.BeamTrap(
+            beam, 0.5, residual_gas_pa={}, ion_temperature_ev=30.0, feed=feed, loss_per_s=[1.0] * 11
+        ).evolve("Ne", [1e-3])
 
     _call(with_feed)

@@ -10,7 +10,7 @@ import chargecast as cc
 
 
 def _sigma_cm2(symbol, charge, energy_ev, lotz):
-    values = cc.lotz_cross_section_cm2(symbol, charge, energy_ev=np.array([energy_ev]), **lotz)
+    values = cc.lotz_cross_section_cm2(symbol, charge, energies_ev=np.array([energy_ev]), **lotz)
     return float(np.asarray(values).ravel()[0])
 
 
@@ -43,7 +43,7 @@ CASES = [
 
 @pytest.mark.parametrize(("symbol", "charge", "kt_ev", "lotz"), CASES)
 def test_rate_coefficient_equals_scipy_quad(symbol, charge, kt_ev, lotz):
-    closed = cc.lotz_rate_coefficient_cm3_s(symbol, charge, temperature_ev=kt_ev, **lotz)
+    closed = cc.lotz_rate_coefficient_cm3_s(symbol, charge, temperatures_ev=kt_ev, **lotz)
     numeric = _maxwellian_rate_cm3_s(symbol, charge, kt_ev, lotz)
     assert numeric > 0.0
     assert float(closed) == pytest.approx(numeric, rel=1e-6)

@@ -178,7 +178,7 @@ def test_report_parts_are_consistent(report: cc.Report) -> None:
     # Ladder rows are the breeding table of the beam.
     lad = report.ladder
     assert lad["charge"][q - 1] == q
-    ref = cc.breeding_time_s("Ar", q, energy_ev=6000.0, current_density_a_cm2=300.0)
+    ref = cc.breeding_time_s("Ar", q, energies_ev=6000.0, current_density_a_cm2=300.0)
     assert lad["breeding_time_s"][q - 1] == pytest.approx(ref, rel=1e-12)
     assert report.recommended is not None and report.ranking is not None
 

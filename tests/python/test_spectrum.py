@@ -62,7 +62,8 @@ def test_atomic_masses_match_periodictable():
     checked = 0
     for z in range(1, 95):
         el = cc.element(z)
-        for mass_number, _, abundance in el.isotopes():
+        for iso in el.isotopes():
+            mass_number, abundance = iso.mass_number, iso.abundance
             if abundance is None:
                 continue
             ref = periodictable.elements[z][mass_number].mass
@@ -123,7 +124,7 @@ def test_line_intensities_are_amount_times_abundance_times_fraction():
     lines = cc.aq_lines({"Ne": {1: 0.25, 2: 0.75}}, amounts={"Ne": 2.0}, residual_gas={})
     assert len(lines) == 6
     assert np.all(np.diff(lines.m_over_q) >= 0)
-    abundance = {a: ab for a, _, ab in cc.element("Ne").isotopes() if ab is not None}
+    abundance = {i.mass_number: i.abundance for i in cc.element("Ne").isotopes() if i.abundance is not None}
     for label, a, q, i in zip(lines.label, lines.mass_number, lines.charge, lines.intensity):
         expected = 2.0 * abundance[int(a)] * {1: 0.25, 2: 0.75}[int(q)]
         assert i == pytest.approx(expected, rel=1e-12), label

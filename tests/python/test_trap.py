@@ -68,7 +68,7 @@ def test_fractions_conserve_their_sum_and_stay_non_negative(trap) -> None:
 def test_ionization_only_matches_the_bateman_closed_form() -> None:
     # H. Bateman, Proc. Cambridge Philos. Soc. 15, 423 (1910): populations of a decay chain.
     beam = cc.ElectronBeam(energy_ev=3000.0, current_a=0.1, radius_m=60e-6)
-    trap = cc.BeamTrap(beam, 0.3, {}, 10.0, processes=("ionization",))
+    trap = cc.BeamTrap(beam, 0.3, residual_gas_pa={}, ion_temperature_ev=10.0, processes=("ionization",))
     lam = np.array([trap.rates("C")[q, q + 1] for q in range(6)])
     t = 2e-4
     ours = trap.evolve("C", [t]).fractions[0]
@@ -85,7 +85,7 @@ def test_breeding_time_matches_the_mean_arrival_time() -> None:
     # With ionization alone the mean time to arrive in q is Σ 1/λ_i (sum of exponential waits):
     # the stepwise breeding time (sources::breeding).
     beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.2, radius_m=60e-6)
-    trap = cc.BeamTrap(beam, 0.3, {}, 10.0, processes=("ionization",))
+    trap = cc.BeamTrap(beam, 0.3, residual_gas_pa={}, ion_temperature_ev=10.0, processes=("ionization",))
     lam = np.array([trap.rates("Ne")[q, q + 1] for q in range(8)])
     assert cc.breeding_time_s("Ne", 8, beam) == pytest.approx(np.sum(1 / lam), rel=1e-12)
 
@@ -99,8 +99,8 @@ def test_best_energy_is_the_maximum_of_direct_runs(trap) -> None:
             cc.BeamTrap(
                 cc.ElectronBeam(e, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
                 0.5,
-                {"H2": 1e-8, "N2": 1e-9},
-                100.0,
+                residual_gas_pa={"H2": 1e-8, "N2": 1e-9},
+                ion_temperature_ev=100.0,
             )
             .evolve("Ar", times)
             .fractions[:, 16]
@@ -133,8 +133,8 @@ def test_sweep_matches_single_runs(trap) -> None:
         cc.BeamTrap(
             cc.ElectronBeam(8000.0, 0.5, current_density_a_cm2=trap.beam.current_density_a_cm2),
             0.5,
-            {"H2": 1e-8, "N2": 1e-9},
-            100.0,
+            residual_gas_pa={"H2": 1e-8, "N2": 1e-9},
+            ion_temperature_ev=100.0,
         )
         .evolve("Ne", times)
         .fractions
@@ -188,7 +188,9 @@ def test_bad_beams_and_times() -> None:
         cc.ElectronBeam(5000.0, 0.0, radius_m=50e-6)
     with pytest.raises(cc.InvalidParameterError, match="exactly one"):
         cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6, magnetic_field_t=2.0)
-    trap = cc.BeamTrap(cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6), 0.5, {}, 50.0)
+    trap = cc.BeamTrap(
+        cc.ElectronBeam(5000.0, 0.1, radius_m=50e-6), 0.5, residual_gas_pa={}, ion_temperature_ev=50.0
+    )
     with pytest.raises(cc.InvalidParameterError, match="ascending"):
         trap.evolve("Ar", [0.1, 0.01])
     with pytest.raises(cc.InvalidParameterError, match=">= 0"):
@@ -201,21 +203,23 @@ def test_a_photon_beam_through_the_trap_adds_its_rates() -> None:
     # The combined network is the sum of the trap's and the photon beam's rate matrices.
     beam = cc.ElectronBeam(3000.0, 0.2, radius_m=60e-6)
     photons = cc.PhotonBeam(1500.0, 1e22)
-    plain = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 50.0)
-    crossed = cc.BeamTrap(beam, 0.5, {"H2": 1e-9}, 50.0, photon_beam=photons)
+    plain = cc.BeamTrap(beam, 0.5, residual_gas_pa={"H2": 1e-9}, ion_temperature_ev=50.0)
+    crossed = cc.BeamTrap(
+        beam, 0.5, residual_gas_pa={"H2": 1e-9}, ion_temperature_ev=50.0, photon_beam=photons
+    )
     np.testing.assert_allclose(crossed.rates("Ne"), plain.rates("Ne") + photons.rates("Ne"), rtol=1e-12)
     # Photons add ionization on top of the electron beam's against the same recombination
     # and charge exchange, so the equilibrium bare fraction grows.
     assert crossed.steady_state("Ne")[10] > plain.steady_state("Ne")[10]
     with pytest.raises(cc.InvalidParameterError, match="PhotonBeam"):
-        cc.BeamTrap(beam, 0.5, {}, 50.0, photon_beam="bright")
+        cc.BeamTrap(beam, 0.5, residual_gas_pa={}, ion_temperature_ev=50.0, photon_beam="bright")
 
 
 def test_multiple_ionization_network_matches_scipy_expm() -> None:
     # Auger cascades make jumps q -> q+1+k; the solver's band path against scipy.linalg.expm.
     beam = cc.ElectronBeam(energy_ev=20000.0, current_a=0.5, radius_m=50e-6)
     processes = ("ionization", "radiative_recombination", "charge_exchange", "multiple_ionization")
-    trap = cc.BeamTrap(beam, 0.5, {"H2": 1e-8}, 100.0, processes=processes)
+    trap = cc.BeamTrap(beam, 0.5, residual_gas_pa={"H2": 1e-8}, ion_temperature_ev=100.0, processes=processes)
     rates = trap.rates("Kr")
     assert np.count_nonzero(np.triu(rates, 3)) > 0  # jumps of three and more charges exist
     times = np.geomspace(1e-5, 1.0, 12)
@@ -230,8 +234,16 @@ def test_multiple_ionization_keeps_the_lotz_total_and_adds_double() -> None:
     # Sum over final charges of the cascade-resolved rates = single-ionization Lotz rate
     # (each subshell ionized once) + direct double ionization (processes::vacancy_jumps).
     beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.2, radius_m=60e-6)
-    single = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization",)).rates("Ar")
-    multi = cc.BeamTrap(beam, 0.5, {}, 50.0, processes=("ionization", "multiple_ionization")).rates("Ar")
+    single = cc.BeamTrap(
+        beam, 0.5, residual_gas_pa={}, ion_temperature_ev=50.0, processes=("ionization",)
+    ).rates("Ar")
+    multi = cc.BeamTrap(
+        beam,
+        0.5,
+        residual_gas_pa={},
+        ion_temperature_ev=50.0,
+        processes=("ionization", "multiple_ionization"),
+    ).rates("Ar")
     out_single = np.triu(single, 1).sum(axis=1)
     out_multi = np.triu(multi, 1).sum(axis=1)
     assert np.all(out_multi >= out_single * (1 - 1e-12))
@@ -241,7 +253,10 @@ def test_multiple_ionization_keeps_the_lotz_total_and_adds_double() -> None:
 def test_evolve_batch_matches_single_runs_and_checks_its_cases() -> None:
     beam_a = cc.ElectronBeam(4000.0, 0.1, radius_m=60e-6)
     beam_b = cc.ElectronBeam(9000.0, 0.3, radius_m=40e-6)
-    traps = [cc.BeamTrap(beam_a, 0.4, {"H2": 1e-9}), cc.BeamTrap(beam_b, 0.6, {"N2": 5e-10}, 80.0)]
+    traps = [
+        cc.BeamTrap(beam_a, 0.4, residual_gas_pa={"H2": 1e-9}),
+        cc.BeamTrap(beam_b, 0.6, residual_gas_pa={"N2": 5e-10}, ion_temperature_ev=80.0),
+    ]
     times = np.geomspace(1e-4, 1.0, 25)
     evos = cc.evolve_batch([(traps[0], "Ne"), (traps[1], "Kr")], times)
     np.testing.assert_array_equal(evos[0].fractions, traps[0].evolve("Ne", times).fractions)

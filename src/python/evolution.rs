@@ -1,0 +1,279 @@
+//! The result of a charge-state evolution: fractions of every charge state over time, with
+//! the quantities read from them (mean charge, peaks, interpolation, a summary).
+
+use numpy::{PyArray1, PyArray2};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+
+use super::convert::{array1_arg, array2_arg, element_arg, float_arg, int_arg};
+use super::{matrix_to_py, to_py};
+use crate::atoms::Element;
+use crate::error::Error;
+
+/// Charge-state fractions of one element over confinement time.
+///
+/// Parameters
+/// ----------
+/// element : str or int
+///     Symbol, name or Z.
+/// times_s : array_like, shape (T,)
+///     Output times (s), ascending.
+/// fractions : array_like, shape (T, Z+1)
+///     Population of each charge state 0 … Z at each time (sums to 1 without losses).
+/// label : str, optional
+///     Description of the source settings, used in plots and tables.
+#[pyclass(name = "Evolution", module = "chargecast", frozen, subclass)]
+pub(crate) struct PyEvolution {
+    element: &'static Element,
+    times_s: Vec<f64>,
+    fractions: ndarray::Array2<f64>,
+    label: String,
+}
+
+impl PyEvolution {
+    fn z(&self) -> u32 {
+        self.fractions.ncols().saturating_sub(1) as u32
+    }
+
+    fn charge(&self, charge: &Bound<'_, PyAny>) -> PyResult<usize> {
+        let q = int_arg("charge", charge)?;
+        self.element.check_charge(q, self.z())?;
+        Ok(q as usize)
+    }
+
+    fn peak_of(&self, q: usize) -> (f64, f64) {
+        let col = self.fractions.column(q);
+        if col.is_empty() {
+            return (f64::NAN, f64::NAN);
+        }
+        let mut best = 0;
+        for (i, v) in col.iter().enumerate() {
+            if *v > col[best] {
+                best = i;
+            }
+        }
+        (self.times_s[best], col[best])
+    }
+
+    fn dominant(&self, threshold: f64) -> Vec<usize> {
+        (0..self.fractions.ncols())
+            .filter(|&q| self.fractions.column(q).iter().any(|f| *f > threshold))
+            .collect()
+    }
+
+    /// An Evolution object (the Python package's class when it is loaded).
+    pub(crate) fn result<'py>(
+        py: Python<'py>,
+        element: &'static Element,
+        times_s: Vec<f64>,
+        fractions: ndarray::Array2<f64>,
+        label: String,
+    ) -> PyResult<Bound<'py, PyAny>> {
+        let value = PyEvolution {
+            element,
+            times_s,
+            fractions,
+            label,
+        };
+        super::results::into_result(py, "Evolution", value)
+    }
+}
+
+#[pymethods]
+impl PyEvolution {
+    #[new]
+    #[pyo3(signature = (element=None, times_s=None, fractions=None, label=String::new()))]
+    fn new(
+        element: Option<&Bound<'_, PyAny>>,
+        times_s: Option<&Bound<'_, PyAny>>,
+        fractions: Option<&Bound<'_, PyAny>>,
+        label: String,
+    ) -> PyResult<Self> {
+        let (element, times_s, fractions) = match (element, times_s, fractions) {
+            (Some(e), Some(t), Some(f)) => (e, t, f),
+            (None, None, None) => {
+                return super::results::staged("Evolution", "BeamTrap.evolve or PhotonBeam.evolve")
+            }
+            _ => {
+                return Err(Error::invalid(
+                    "Evolution",
+                    "missing arguments",
+                    "give element, times_s and fractions",
+                )
+                .into())
+            }
+        };
+        let element = element_arg(element)?;
+        let times_s = array1_arg("times_s", times_s)?;
+        let fractions = array2_arg("fractions", fractions)?;
+        if fractions.nrows() != times_s.len() || fractions.ncols() == 0 {
+            return Err(Error::invalid(
+                "fractions",
+                format!("shape {:?}", fractions.shape()),
+                &format!(
+                    "must have shape (len(times_s), Z+1) for {} times",
+                    times_s.len()
+                ),
+            )
+            .into());
+        }
+        Ok(PyEvolution {
+            element,
+            times_s,
+            fractions,
+            label,
+        })
+    }
+
+    /// Element symbol.
+    #[getter]
+    fn element(&self) -> &str {
+        self.element.symbol()
+    }
+    /// Atomic number (the highest charge state).
+    #[getter(z)]
+    fn z_py(&self) -> u32 {
+        self.z()
+    }
+    /// Output times (s), shape (T,).
+    #[getter]
+    fn times_s<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.times_s.clone())
+    }
+    /// Fractions [T, Z+1] of every charge state at every time.
+    #[getter]
+    fn fractions<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
+        matrix_to_py(py, self.fractions.clone())
+    }
+    /// Charge states 0 … Z.
+    #[getter]
+    fn charges<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<i64>> {
+        numpy::IntoPyArray::into_pyarray((0..self.fractions.ncols() as i64).collect::<Vec<_>>(), py)
+    }
+    /// Description of the source settings.
+    #[getter]
+    fn label(&self) -> &str {
+        &self.label
+    }
+
+    /// Mean charge Σ q·F_q / Σ F_q at every time.
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (T,)
+    ///     Mean charge (elementary charges); 0 where every fraction is 0.
+    fn mean_charge<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        let out = self
+            .fractions
+            .rows()
+            .into_iter()
+            .map(|r| {
+                let total: f64 = r.sum();
+                let charge: f64 = r.iter().enumerate().map(|(q, f)| q as f64 * f).sum();
+                if total > 0.0 {
+                    charge / total
+                } else {
+                    0.0
+                }
+            })
+            .collect();
+        to_py(py, out)
+    }
+
+    /// Time (s) and value of the largest fraction of one charge state on the time grid.
+    ///
+    /// Parameters
+    /// ----------
+    /// charge : int
+    ///     Charge state, 0 … Z.
+    ///
+    /// Returns
+    /// -------
+    /// tuple of float
+    ///     ``(time_s, fraction)``.
+    fn peak(&self, charge: &Bound<'_, PyAny>) -> PyResult<(f64, f64)> {
+        Ok(self.peak_of(self.charge(charge)?))
+    }
+
+    /// Fractions at one time, interpolated linearly between grid points.
+    ///
+    /// Parameters
+    /// ----------
+    /// time_s : float
+    ///     Time (s) within the computed grid.
+    ///
+    /// Returns
+    /// -------
+    /// ndarray, shape (Z+1,)
+    ///     Fraction of each charge state.
+    fn at<'py>(
+        &self,
+        py: Python<'py>,
+        time_s: &Bound<'_, PyAny>,
+    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+        let t = float_arg("time_s", time_s)?;
+        let (first, last) = match (self.times_s.first(), self.times_s.last()) {
+            (Some(a), Some(b)) => (*a, *b),
+            _ => return Err(Error::invalid("time_s", t, "the evolution has no times").into()),
+        };
+        if !(first <= t && t <= last) {
+            return Err(Error::invalid(
+                "time_s",
+                t,
+                &format!("must lie within the computed grid {first} … {last} s"),
+            )
+            .into());
+        }
+        // The first grid time at or after t; equal neighbours give that row exactly.
+        let k = self.times_s.partition_point(|x| *x < t);
+        let row = if self.times_s[k] == t || k == 0 {
+            self.fractions.row(k).to_vec()
+        } else {
+            // numpy.interp's arithmetic (slope × offset + left value), so results match it.
+            let (t0, t1) = (self.times_s[k - 1], self.times_s[k]);
+            self.fractions
+                .row(k - 1)
+                .iter()
+                .zip(self.fractions.row(k))
+                .map(|(a, b)| (b - a) / (t1 - t0) * (t - t0) + a)
+                .collect()
+        };
+        Ok(to_py(py, row))
+    }
+
+    /// Charge states whose fraction ever exceeds ``threshold``.
+    #[pyo3(signature = (threshold=0.01))]
+    fn dominant_charges(&self, threshold: f64) -> Vec<usize> {
+        self.dominant(threshold)
+    }
+
+    /// Per charge state that exceeds ``threshold``: peak fraction, time of peak, final fraction.
+    ///
+    /// Returns
+    /// -------
+    /// list of dict
+    ///     Keys ``charge``, ``peak_fraction``, ``peak_time_s``, ``final_fraction``.
+    #[pyo3(signature = (threshold=0.01))]
+    fn summary<'py>(&self, py: Python<'py>, threshold: f64) -> PyResult<Vec<Bound<'py, PyDict>>> {
+        let Some(last) = self.fractions.nrows().checked_sub(1) else {
+            return Ok(Vec::new());
+        };
+        self.dominant(threshold)
+            .into_iter()
+            .map(|q| {
+                let (t, f) = self.peak_of(q);
+                let d = PyDict::new(py);
+                d.set_item("charge", q)?;
+                d.set_item("peak_fraction", f)?;
+                d.set_item("peak_time_s", t)?;
+                d.set_item("final_fraction", self.fractions[[last, q]])?;
+                Ok(d)
+            })
+            .collect()
+    }
+}
+
+pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_class::<PyEvolution>()?;
+    Ok(())
+}
