@@ -40,6 +40,27 @@ pub enum Error {
     /// A scenario file that cannot be read or does not follow the schema.
     #[error("{file}: {message}")]
     InvalidScenario { file: String, message: String },
+
+    /// A request whose estimated memory (result and working set) exceeds the limit of one
+    /// call (see `limits`).
+    #[error(
+        "{what} needs about {} of memory (estimated result and working set), more than the limit of {}: use fewer points or raise the limit (set_memory_limit_bytes)",
+        crate::limits::human_bytes(*estimate_bytes),
+        crate::limits::human_bytes(*limit_bytes)
+    )]
+    MemoryLimit {
+        what: String,
+        estimate_bytes: u64,
+        limit_bytes: u64,
+    },
+
+    /// The machine could not provide memory that was within the limit.
+    #[error("could not allocate {} for {what}: not enough free memory on this machine", crate::limits::human_bytes(*bytes))]
+    AllocationFailed { what: String, bytes: u64 },
+
+    /// The computation was stopped by a request to cancel it (Ctrl-C; see `interrupt`).
+    #[error("interrupted")]
+    Interrupted,
 }
 
 impl Error {
