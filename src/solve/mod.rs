@@ -16,6 +16,7 @@
 //! * [`evolve_batch`]: many independent problems in parallel (rayon).
 
 mod banded;
+mod dense;
 mod flux;
 mod radau;
 mod steady;
@@ -25,7 +26,73 @@ use ndarray::Array2;
 use rayon::prelude::*;
 
 use crate::error::{require_sorted_times, Error, Result};
+use crate::interrupt;
+use crate::limits::{bytes_for, check_memory};
 use crate::network::RateNetwork;
+
+/// Largest t × (largest total rate out of a state) accepted, 1e20 (see the module docs).
+pub const MAX_RATE_TIME: f64 = 1e20;
+
+/// Bytes of the result and working set of [`evolve`] on `network` at `n_times` outputs: the
+/// result [n_times, n] plus the stepper (band or Hessenberg factors, flux terms, vectors).
+pub fn evolve_memory_bytes(network: &RateNetwork, n_times: usize) -> u64 {
+    let n = network.n_states();
+    let (lower, upper) = (network.max_jump_down(), network.max_jump_up());
+    let band_entries = bytes_for(&[n, lower.min(n) + upper.min(n) + 1], 1);
+    let kernel = if radau::use_dense(n, lower, upper) {
+        dense::working_bytes(n)
+    } else {
+        // Band matrix (8) plus its factors for three poles × two step sizes (80).
+        band_entries.saturating_mul(88)
+    };
+    // Flux terms (16 bytes each, up to two per band entry) and a dozen vectors.
+    let flux = band_entries.saturating_mul(32);
+    bytes_for(&[n_times, n], 8)
+        .saturating_add(kernel)
+        .saturating_add(flux)
+        .saturating_add(bytes_for(&[n, 16], 8))
+}
+
+/// Bytes of an energy × time map over `n_energies` × `n_times` for `n_states` states: the
+/// map, its copy for the caller, and one evolution [n_times, n_states] per worker thread.
+pub fn energy_map_memory_bytes(n_energies: usize, n_times: usize, n_states: usize) -> u64 {
+    bytes_for(&[n_energies, n_times], 16).saturating_add(bytes_for(
+        &[rayon::current_num_threads(), n_times, n_states],
+        8,
+    ))
+}
+
+/// Reject output times that f64 cannot follow on this network (see the module docs).
+fn check_time_range(network: &RateNetwork, initial: &[f64], times_s: &[f64]) -> Result<()> {
+    let Some(&last) = times_s.last() else {
+        return Ok(());
+    };
+    let fastest = (0..network.n_states())
+        .map(|q| network.total_out_rate_per_s(q))
+        .fold(0.0, f64::max);
+    if last * fastest > MAX_RATE_TIME {
+        return Err(Error::invalid(
+            "times_s",
+            last,
+            &format!(
+                "must be at most {:e} s for this network: t × (largest rate out of a state, \
+                 {fastest:e} s⁻¹) is limited to {MAX_RATE_TIME:e}, beyond which the f64 \
+                 round-off of the fastest fluxes, integrated over the time, can outgrow the \
+                 populations",
+                MAX_RATE_TIME / fastest
+            ),
+        ));
+    }
+    let growth = initial.iter().sum::<f64>() + last * network.feed_per_s().iter().sum::<f64>();
+    if !(growth < 1e300) {
+        return Err(Error::invalid(
+            "times_s",
+            last,
+            "feed × time overflows f64: the populations would exceed 1e300",
+        ));
+    }
+    Ok(())
+}
 
 /// Populations at each output time for dN/dt = M N + s, N(0) = `initial`.
 ///
@@ -35,6 +102,7 @@ use crate::network::RateNetwork;
 pub fn evolve(network: &RateNetwork, initial: &[f64], times_s: &[f64]) -> Result<Array2<f64>> {
     require_sorted_times("times_s", times_s)?;
     check_initial(network, initial)?;
+    check_time_range(network, initial, times_s)?;
     radau::propagate(network, initial, times_s)
 }
 
@@ -56,13 +124,30 @@ pub fn evolve_batch(
     if let Err(e) = require_sorted_times("times_s", times_s) {
         return problems.iter().map(|_| Err(e.clone())).collect();
     }
-    problems
-        .par_iter()
-        .map(|(network, initial)| {
-            check_initial(network, initial)?;
-            radau::propagate(network, initial, times_s)
-        })
-        .collect()
+    let results: u64 = problems
+        .iter()
+        .map(|(net, _)| bytes_for(&[times_s.len(), net.n_states()], 8))
+        .fold(0, u64::saturating_add);
+    let workers = problems
+        .iter()
+        .map(|(net, _)| evolve_memory_bytes(net, 0))
+        .max()
+        .unwrap_or(0)
+        .saturating_mul(rayon::current_num_threads() as u64);
+    if let Err(e) = check_memory("the batch of evolutions", results.saturating_add(workers)) {
+        return problems.iter().map(|_| Err(e.clone())).collect();
+    }
+    interrupt::run_polled(|| {
+        problems
+            .par_iter()
+            .map(|(network, initial)| {
+                interrupt::check()?;
+                check_initial(network, initial)?;
+                check_time_range(network, initial, times_s)?;
+                radau::propagate(network, initial, times_s)
+            })
+            .collect()
+    })
 }
 
 fn check_initial(network: &RateNetwork, initial: &[f64]) -> Result<()> {
