@@ -20,7 +20,10 @@ fn geomspace(first: f64, last: f64, count: usize) -> Vec<f64> {
 /// normal number, exactly zero once it has underflowed.
 fn assert_uniform_decay(out: &ndarray::Array2<f64>, times: &[f64], loss: f64) {
     for (row, &t) in out.outer_iter().zip(times) {
-        assert!(row.iter().all(|v| v.is_finite() && *v >= 0.0), "t={t}: {row}");
+        assert!(
+            row.iter().all(|v| v.is_finite() && *v >= 0.0),
+            "t={t}: {row}"
+        );
         let total: f64 = row.sum();
         let exact = (-loss * t).exp();
         if exact > 1e-290 {
@@ -80,14 +83,18 @@ fn times_beyond_the_f64_range_are_rejected_with_the_limit() {
     net.add_rate(2, 1, 1.0).unwrap();
     let ok = evolve(&net, &[1.0, 0.0, 0.0], &[1e10]).unwrap();
     assert!((ok.row(0).sum() - 1.0).abs() < 1e-12);
-    let err = evolve(&net, &[1.0, 0.0, 0.0], &[1e40]).unwrap_err().to_string();
+    let err = evolve(&net, &[1.0, 0.0, 0.0], &[1e40])
+        .unwrap_err()
+        .to_string();
     assert!(err.contains("must be at most 1e11 s"), "{err}");
     assert!(err.contains("1e20"), "{err}");
 }
 
 /// A dense network (every pair connected) large enough for the Hessenberg path.
 fn dense_network(n: usize, seed: u64, spread: f64) -> RateNetwork {
-    let mut state = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+    let mut state = seed
+        .wrapping_mul(6364136223846793005)
+        .wrapping_add(1442695040888963407);
     let mut uniform = move || {
         state = state
             .wrapping_mul(6364136223846793005)

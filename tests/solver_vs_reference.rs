@@ -372,7 +372,9 @@ fn invalid_input_is_an_error_not_a_panic() {
     // A fast pair that has long reached its equilibrium is not an error, within the time
     // range f64 supports (t × largest rate ≤ 1e20); beyond it a clear error.
     huge.set_feed(0, 0.0).unwrap();
-    let beyond = evolve(&huge, &[1.0, 0.0], &[1e300]).unwrap_err().to_string();
+    let beyond = evolve(&huge, &[1.0, 0.0], &[1e300])
+        .unwrap_err()
+        .to_string();
     assert!(beyond.contains("must be at most 1e-280 s"), "{beyond}");
     let settled = evolve(&huge, &[1.0, 0.0], &[1e-285]).unwrap();
     assert!(

@@ -22,6 +22,7 @@ from chargecast._core import (
     UnknownElementError,
     UnknownGasError,
 )
+from chargecast._core import memory_limit_bytes, set_memory_limit_bytes
 
 # --- atoms and electron-impact cross sections (foundation)
 from chargecast.atoms import (
@@ -118,6 +119,8 @@ __all__ = [
     "evolve_batch",
     "herrmann_radius_m",
     "solve_rate_equations",
+    "memory_limit_bytes",
+    "set_memory_limit_bytes",
     "steady_state_rate_equations",
     "Element",
     "Ion",

@@ -316,10 +316,18 @@ impl PyBeamTrap {
         let jobs: Vec<(usize, f64)> = (0..els.len())
             .flat_map(|i| e.iter().map(move |x| (i, *x)))
             .collect();
+        crate::limits::check_memory(
+            "the sweep",
+            els.iter()
+                .map(|el| crate::limits::bytes_for(&[e.len(), t.len(), el.z() as usize + 1], 16))
+                .fold(0, u64::saturating_add),
+        )?;
         let results = guard(py, || {
-            jobs.par_iter()
-                .map(|(i, energy)| self.inner.with_energy(*energy)?.evolve(els[*i], &t, 0))
-                .collect::<Result<Vec<_>>>()
+            crate::interrupt::run_polled(|| {
+                jobs.par_iter()
+                    .map(|(i, energy)| self.inner.with_energy(*energy)?.evolve(els[*i], &t, 0))
+                    .collect::<Result<Vec<_>>>()
+            })
         })?;
         let d = PyDict::new(py);
         for (i, el) in els.iter().enumerate() {
@@ -360,10 +368,12 @@ fn _evolve_batch<'py>(
         .collect::<Result<_>>()?;
     let times = vec_arg(&times_s);
     let results = guard(py, || {
-        cases
-            .par_iter()
-            .map(|(trap, el)| trap.evolve(el, &times, 0))
-            .collect::<Result<Vec<_>>>()
+        crate::interrupt::run_polled(|| {
+            cases
+                .par_iter()
+                .map(|(trap, el)| trap.evolve(el, &times, 0))
+                .collect::<Result<Vec<_>>>()
+        })
     })?;
     Ok(results.into_iter().map(|a| matrix_to_py(py, a)).collect())
 }

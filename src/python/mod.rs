@@ -7,6 +7,7 @@ mod atoms;
 mod convert;
 mod engine;
 mod errors;
+mod limits;
 mod photon;
 mod scenario;
 mod spectrum;
@@ -23,5 +24,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     photon::register(m)?;
     spectrum::register(m)?;
     scenario::register(m)?;
+    limits::register(m)?;
     Ok(())
 }

@@ -18,6 +18,7 @@ use rayon::prelude::*;
 use super::banded::{BandMatrix, Poles};
 use super::radau::{COMPLEX_POLES, REAL_POLE};
 use crate::error::Result;
+use crate::interrupt;
 use crate::limits::try_vec;
 
 /// The poles as complex numbers: the real one first.
@@ -126,6 +127,8 @@ impl HessenbergPair {
         let mut reflectors = Vec::new();
         let mut w = vec![0.0; n];
         for k in 0..n.saturating_sub(2) {
+            // O(n²) per column: a long reduction stays interruptible.
+            interrupt::check()?;
             let mut v: Vec<f64> = (k + 1..n).map(|i| a[i * n + k]).collect();
             let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
             if norm == 0.0 {
@@ -199,7 +202,11 @@ impl HessenbergPair {
         if transpose {
             reflectors.iter().enumerate().for_each(|(k, r)| one(r, k));
         } else {
-            reflectors.iter().enumerate().rev().for_each(|(k, r)| one(r, k));
+            reflectors
+                .iter()
+                .enumerate()
+                .rev()
+                .for_each(|(k, r)| one(r, k));
         }
     }
 
@@ -293,7 +300,10 @@ mod tests {
         }
         let expected_rate = dense_combine(&m, h[1], &weights, &f);
         for i in 0..n {
-            assert!((rate[i] - expected_rate[i] / h[1]).abs() < 1e-10 * (1.0 + expected_rate[i].abs() / h[1]));
+            assert!(
+                (rate[i] - expected_rate[i] / h[1]).abs()
+                    < 1e-10 * (1.0 + expected_rate[i].abs() / h[1])
+            );
         }
     }
 }

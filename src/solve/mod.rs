@@ -73,7 +73,7 @@ fn check_time_range(network: &RateNetwork, initial: &[f64], times_s: &[f64]) -> 
     if last * fastest > MAX_RATE_TIME {
         return Err(Error::invalid(
             "times_s",
-            last,
+            format!("{last:e}"),
             &format!(
                 "must be at most {:e} s for this network: t × (largest rate out of a state, \
                  {fastest:e} s⁻¹) is limited to {MAX_RATE_TIME:e}, beyond which the f64 \

@@ -244,6 +244,10 @@ pub(crate) fn propagate_with_stats(
     times_s: &[f64],
 ) -> Result<(Array2<f64>, Stats)> {
     let n = network.n_states();
+    check_memory(
+        "the evolution",
+        super::evolve_memory_bytes(network, times_s.len()),
+    )?;
     let active = reachable(network, initial);
     if active.len() == n {
         return propagate_all(network, initial, times_s);
@@ -289,10 +293,6 @@ fn propagate_all(
     times_s: &[f64],
 ) -> Result<(Array2<f64>, Stats)> {
     let n = network.n_states();
-    check_memory(
-        "the evolution",
-        super::evolve_memory_bytes(network, times_s.len()),
-    )?;
     let mut out = try_zeros("the populations", times_s.len(), n)?;
     let mut stats = Stats {
         n_active: n,
@@ -394,7 +394,13 @@ fn propagate_all(
                 v
             };
         }
-        check_output(row.as_slice().unwrap_or(&[]), mass, t_out, network, conserving)?;
+        check_output(
+            row.as_slice().unwrap_or(&[]),
+            mass,
+            t_out,
+            network,
+            conserving,
+        )?;
     }
     Ok((out, stats))
 }
