@@ -367,6 +367,13 @@ fn _evolve_batch<'py>(
         .map(|(t, e)| Ok((t.inner.clone(), element_arg(e)?)))
         .collect::<Result<_>>()?;
     let times = vec_arg(&times_s);
+    crate::limits::check_memory(
+        "the batch of evolutions",
+        cases
+            .iter()
+            .map(|(_, el)| crate::limits::bytes_for(&[times.len(), el.z() as usize + 1], 8))
+            .fold(0, u64::saturating_add),
+    )?;
     let results = guard(py, || {
         crate::interrupt::run_polled(|| {
             cases
