@@ -21,8 +21,9 @@ from chargecast._core import (
     ScenarioError,
     UnknownElementError,
     UnknownGasError,
+    memory_limit_bytes,
+    set_memory_limit_bytes,
 )
-from chargecast._core import memory_limit_bytes, set_memory_limit_bytes
 
 # --- atoms and electron-impact cross sections (foundation)
 from chargecast.atoms import (

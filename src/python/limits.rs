@@ -5,13 +5,42 @@ use pyo3::prelude::*;
 
 use crate::limits;
 
-/// Set the memory limit of one call, in bytes (default 2 GiB, at least 1 MiB).
+/// Set the memory limit of one call.
+///
+/// Every evolution, batch, sweep, energy × time map and rate network estimates the memory
+/// of its result and working set first and raises InvalidParameterError, naming the
+/// estimate and the limit, if it exceeds this limit. The setting is process-wide.
+///
+/// Parameters
+/// ----------
+/// limit_bytes : int
+///     The new limit (bytes), at least 1 MiB (1048576); the default is 2 GiB.
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> old = cc.memory_limit_bytes()
+/// >>> cc.set_memory_limit_bytes(8 * 1024**3)
+/// >>> cc.memory_limit_bytes()
+/// 8589934592
+/// >>> cc.set_memory_limit_bytes(old)
 #[pyfunction]
 fn set_memory_limit_bytes(limit_bytes: u64) -> PyResult<()> {
     Ok(limits::set_memory_limit_bytes(limit_bytes)?)
 }
 
-/// The memory limit of one call, in bytes.
+/// The memory limit of one call (see ``set_memory_limit_bytes``).
+///
+/// Returns
+/// -------
+/// int
+///     The limit (bytes) on the estimated memory of one call; 2 GiB unless changed.
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> cc.memory_limit_bytes()
+/// 2147483648
 #[pyfunction]
 fn memory_limit_bytes() -> u64 {
     limits::memory_limit_bytes()

@@ -145,7 +145,8 @@ def test_ctrl_c_interrupts_a_long_solve(watchdog):
 
 def test_ctrl_c_interrupts_a_parallel_batch(watchdog):
     traps = [
-        cc.BeamTrap(cc.ElectronBeam(5000.0 + 0.1 * k, 0.3, radius_m=70e-6), 0.6, {"H2": 1e-8}) for k in range(40_000)
+        cc.BeamTrap(cc.ElectronBeam(5000.0 + 0.1 * k, 0.3, radius_m=70e-6), 0.6, {"H2": 1e-8})
+        for k in range(40_000)
     ]
     times = np.geomspace(1e-5, 10.0, 10)
     timer = _interrupt_soon(0.5)
