@@ -156,3 +156,16 @@ def test_ctrl_c_interrupts_a_parallel_batch(watchdog):
     finally:
         timer.cancel()
     assert len(cc.evolve_batch([(traps[0], "Ar")], times[:3])) == 1
+
+
+def test_ctrl_c_interrupts_an_energy_scan(watchdog):
+    trap = cc.BeamTrap(cc.ElectronBeam(8000.0, 0.3, radius_m=70e-6), 0.6, {"H2": 5e-9})
+    energies = np.linspace(1000.0, 30000.0, 200_000)
+    timer = _interrupt_soon(0.5)
+    try:
+        with pytest.raises(KeyboardInterrupt):
+            trap.best_energy("Ar", 16, energies, np.geomspace(1e-4, 10.0, 50))
+    finally:
+        timer.cancel()
+    best = trap.best_energy("Ar", 16, energies[:20], np.geomspace(1e-4, 10.0, 50))
+    assert 0.0 < best.best_fraction <= 1.0
