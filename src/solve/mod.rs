@@ -17,8 +17,9 @@
 //!     full accuracy in their slow modes; O(n·p·q) per step size (`banded`);
 //!   - general, non-banded networks (at least 64 states and p·q > 8n): a one-off Householder
 //!     reduction to Hessenberg form, then a Hessenberg LU, O(n²), per step size (`dense`).
-//!     A fully connected 1 000-state network over 20 output times takes 2.9 s (measured,
-//!     2 cores; the band path took 160 s).
+//!     A fully connected 1 000-state network over 20 output times takes 2.9 s (measured on
+//!     2 cores; the band path, O(n³) per step size, had been reported at 160 s for such a
+//!     network).
 //! * Decay to underflow: populations below the smallest normal f64 (2.2e-308) are set to
 //!   exactly zero after every step, and the local tolerance has that absolute floor, so a
 //!   population decaying through it (loss L over t ≳ 700/L) ends at 0 instead of driving
