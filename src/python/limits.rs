@@ -3,6 +3,7 @@
 
 use pyo3::prelude::*;
 
+use super::convert::int_arg;
 use crate::limits;
 
 /// Set the memory limit of one call.
@@ -25,8 +26,12 @@ use crate::limits;
 /// 8589934592
 /// >>> cc.set_memory_limit_bytes(old)
 #[pyfunction]
-fn set_memory_limit_bytes(limit_bytes: u64) -> PyResult<()> {
-    Ok(limits::set_memory_limit_bytes(limit_bytes)?)
+fn set_memory_limit_bytes(limit_bytes: &Bound<'_, PyAny>) -> PyResult<()> {
+    // A negative count is below the minimum, which the core check reports.
+    let n = int_arg("limit_bytes", limit_bytes)?;
+    Ok(limits::set_memory_limit_bytes(
+        u64::try_from(n).unwrap_or(0),
+    )?)
 }
 
 /// The memory limit of one call (see ``set_memory_limit_bytes``).

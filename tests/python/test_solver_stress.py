@@ -96,8 +96,10 @@ def test_memory_limit_refuses_with_estimate_and_limit():
         assert "the evolution needs about 1.6" in str(info.value)
         with pytest.raises(cc.InvalidParameterError, match="at least"):
             cc.set_memory_limit_bytes(10)
-        with pytest.raises(OverflowError):
+        with pytest.raises(cc.InvalidParameterError, match="at least"):
             cc.set_memory_limit_bytes(-1)
+        with pytest.raises(cc.InvalidParameterError, match="whole number"):
+            cc.set_memory_limit_bytes(2.5e9)
     finally:
         cc.set_memory_limit_bytes(default)
     got = cc.solve_rate_equations(rates, np.array([1.0, 0.0]), np.linspace(0.0, 1.0, 100_000))
