@@ -40,6 +40,27 @@ pub enum Error {
     /// A scenario file that cannot be read or does not follow the schema.
     #[error("{file}: {message}")]
     InvalidScenario { file: String, message: String },
+
+    /// A request whose estimated memory (result and working set) exceeds the limit of one
+    /// call (see `limits`).
+    #[error(
+        "{what} needs about {} of memory (estimated result and working set), more than the limit of {}: use fewer points or raise the limit (set_memory_limit_bytes)",
+        human_bytes(*estimate_bytes),
+        human_bytes(*limit_bytes)
+    )]
+    MemoryLimit {
+        what: String,
+        estimate_bytes: u64,
+        limit_bytes: u64,
+    },
+
+    /// The machine could not provide memory that was within the limit.
+    #[error("could not allocate {} for {what}: not enough free memory on this machine", human_bytes(*bytes))]
+    AllocationFailed { what: String, bytes: u64 },
+
+    /// The computation was stopped by a request to cancel it (Ctrl-C; see `interrupt`).
+    #[error("interrupted")]
+    Interrupted,
 }
 
 impl Error {
@@ -100,6 +121,17 @@ pub fn require_sorted_times(name: &str, times: &[f64]) -> Result<()> {
         ));
     }
     Ok(())
+}
+
+/// A byte count for messages: "5.52 GB (5520000000 bytes)".
+pub fn human_bytes(bytes: u64) -> String {
+    let units = [(1e12, "TB"), (1e9, "GB"), (1e6, "MB"), (1e3, "kB")];
+    for (scale, unit) in units {
+        if bytes as f64 >= scale {
+            return format!("{:.3} {unit} ({bytes} bytes)", bytes as f64 / scale);
+        }
+    }
+    format!("{bytes} bytes")
 }
 
 #[cfg(test)]

@@ -35,6 +35,8 @@
 pub mod atoms;
 pub mod constants;
 pub mod error;
+pub mod interrupt;
+pub mod limits;
 pub mod network;
 pub mod processes;
 pub mod solve;

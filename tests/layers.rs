@@ -3,7 +3,7 @@
 //!   data → atoms → processes → network → solve → sources → plan → python
 //!
 //! with `spectrum` beside `plan` (it may use atoms and processes; plan may use it), and the
-//! shared `constants` and `error` below everything. This test reads every `src/**/*.rs`,
+//! shared `constants`, `error`, `interrupt` and `limits` below everything. This test reads every `src/**/*.rs`,
 //! maps each file to its layer, and fails when a file refers to a module of a layer it may
 //! not use (`use crate::x…`, a `crate::x::…` path in code, or a `super::…` chain that
 //! climbs to the crate root), when a file outside `src/python` mentions pyo3 or the numpy
@@ -18,6 +18,9 @@ use std::path::{Path, PathBuf};
 const CHAIN: &[&str] = &[
     "constants",
     "error",
+    // Shared services that use only `error`: the interrupt flag and the memory limit.
+    "interrupt",
+    "limits",
     "atoms",
     "processes",
     "network",
@@ -29,7 +32,14 @@ const CHAIN: &[&str] = &[
 
 /// `spectrum` sits beside `plan`: it may use these (and itself); `plan` and everything
 /// above it may use `spectrum`.
-const SPECTRUM_USES: &[&str] = &["constants", "error", "atoms", "processes"];
+const SPECTRUM_USES: &[&str] = &[
+    "constants",
+    "error",
+    "interrupt",
+    "limits",
+    "atoms",
+    "processes",
+];
 const SPECTRUM: &str = "spectrum";
 const FIRST_USER_OF_SPECTRUM: &str = "plan";
 

@@ -21,6 +21,8 @@ from chargecast._core import (
     ScenarioError,
     UnknownElementError,
     UnknownGasError,
+    memory_limit_bytes,
+    set_memory_limit_bytes,
 )
 
 # --- atoms and electron-impact cross sections (foundation)
@@ -112,6 +114,8 @@ __all__ = [
     "evolve_batch",
     "herrmann_radius_m",
     "solve_rate_equations",
+    "memory_limit_bytes",
+    "set_memory_limit_bytes",
     "steady_state_rate_equations",
     "Element",
     "Ion",

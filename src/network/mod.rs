@@ -9,6 +9,7 @@
 use ndarray::Array2;
 
 use crate::error::{require_non_negative, Error, Result};
+use crate::limits::{bytes_for, check_memory, try_vec};
 
 /// Transition rates, losses and feeds of an `n_states`-state network.
 #[derive(Clone, Debug, PartialEq)]
@@ -27,9 +28,11 @@ impl RateNetwork {
         if n_states == 0 {
             return Err(Error::invalid("n_states", n_states, "must be at least 1"));
         }
+        // The rate table is n², checked before it is reserved (see `limits`).
+        check_memory("the rate network", bytes_for(&[n_states, n_states], 8))?;
         Ok(Self {
             n_states,
-            rates_per_s: vec![0.0; n_states * n_states],
+            rates_per_s: try_vec("the rate network", n_states * n_states, 0.0)?,
             loss_per_s: vec![0.0; n_states],
             feed_per_s: vec![0.0; n_states],
         })
@@ -210,8 +213,11 @@ mod tests {
     use super::*;
 
     #[test]
-    fn rejects_empty_network() {
+    fn rejects_empty_and_oversized_networks() {
         assert!(RateNetwork::new(0).is_err());
+        // 1e6 states would need an 8 TB rate table: refused, not an allocation abort.
+        let err = RateNetwork::new(1_000_000).unwrap_err();
+        assert!(matches!(err, Error::MemoryLimit { .. }), "{err}");
     }
 
     #[test]

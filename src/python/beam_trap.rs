@@ -447,10 +447,18 @@ impl PyBeamTrap {
         let jobs: Vec<(usize, f64)> = (0..els.len())
             .flat_map(|i| e.iter().map(move |x| (i, *x)))
             .collect();
+        crate::limits::check_memory(
+            "the sweep",
+            els.iter()
+                .map(|el| crate::limits::bytes_for(&[e.len(), t.len(), el.z() as usize + 1], 16))
+                .fold(0, u64::saturating_add),
+        )?;
         let results = guard(py, || {
-            jobs.par_iter()
-                .map(|(i, energy)| self.inner.with_energy(*energy)?.evolve(els[*i], &t, 0))
-                .collect::<Result<Vec<_>>>()
+            crate::interrupt::run_polled(|| {
+                jobs.par_iter()
+                    .map(|(i, energy)| self.inner.with_energy(*energy)?.evolve(els[*i], &t, 0))
+                    .collect::<Result<Vec<_>>>()
+            })
         })?;
         let d = PyDict::new(py);
         for (i, el) in els.iter().enumerate() {

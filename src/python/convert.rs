@@ -2,6 +2,8 @@
 //! numpy arrays; a guard that turns any stray panic into a Python exception.
 
 use std::panic::{catch_unwind, AssertUnwindSafe};
+use std::sync::{Arc, Mutex};
+use std::time::{Duration, Instant};
 
 use numpy::{IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1};
 use pyo3::prelude::*;
@@ -10,6 +12,7 @@ use pyo3::types::{PyBool, PyInt, PyString};
 use super::errors::ChargecastError;
 use crate::atoms::{element, element_by_z, Element};
 use crate::error::{Error, Result};
+use crate::interrupt;
 
 /// An element from a Python str (symbol, name or digits) or int (Z).
 pub(crate) fn element_arg(value: &Bound<'_, PyAny>) -> Result<&'static Element> {
@@ -37,10 +40,39 @@ fn bad_element(value: &Bound<'_, PyAny>) -> Error {
     }
 }
 
+/// How often a long call re-acquires the GIL to look for pending signals (Ctrl-C).
+const SIGNAL_POLL: Duration = Duration::from_millis(100);
+
 /// Run `f` with the GIL released and turn a panic (a bug, never expected) into a
 /// `ChargecastError` instead of letting it reach Python.
+///
+/// While `f` runs, the core's interrupt poll hook re-acquires the GIL at most every
+/// [`SIGNAL_POLL`] and runs Python's signal handlers. When one raises (KeyboardInterrupt
+/// from Ctrl-C), the core's cancellation flag is set, so that the loops of `f` and of its
+/// worker threads stop at their next check, and that exception is raised here.
 pub(crate) fn guard<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T> + Send) -> PyResult<T> {
-    let out = py.detach(|| catch_unwind(AssertUnwindSafe(f)));
+    let pending: Arc<Mutex<Option<PyErr>>> = Arc::default();
+    let caught = pending.clone();
+    let mut last_poll = Instant::now();
+    let hook = move || {
+        if last_poll.elapsed() < SIGNAL_POLL {
+            return false;
+        }
+        last_poll = Instant::now();
+        match Python::attach(|py| py.check_signals()) {
+            Ok(()) => false,
+            Err(e) => {
+                *caught.lock().unwrap_or_else(|p| p.into_inner()) = Some(e);
+                true
+            }
+        }
+    };
+    let out = py.detach(|| interrupt::with_poll_hook(hook, || catch_unwind(AssertUnwindSafe(f))));
+    if let Some(err) = pending.lock().unwrap_or_else(|p| p.into_inner()).take() {
+        // This call set the flag; every worker has stopped by now.
+        interrupt::reset();
+        return Err(err);
+    }
     match out {
         Ok(Ok(v)) => Ok(v),
         Ok(Err(e)) => Err(e.into()),

@@ -2,7 +2,7 @@
 //! `ChargecastError`, itself a `ValueError` (bad input is a value problem).
 
 use pyo3::create_exception;
-use pyo3::exceptions::PyValueError;
+use pyo3::exceptions::{PyKeyboardInterrupt, PyValueError};
 use pyo3::prelude::*;
 
 use crate::error::Error;
@@ -60,6 +60,12 @@ pub(crate) fn to_py_err(err: Error) -> PyErr {
         Error::InvalidParameter { .. } => InvalidParameterError::new_err(msg),
         Error::UnknownGas { .. } => UnknownGasError::new_err(msg),
         Error::InvalidScenario { .. } => ScenarioError::new_err(msg),
+        // Too big a request is a bad parameter value (the message names estimate and limit).
+        Error::MemoryLimit { .. } | Error::AllocationFailed { .. } => {
+            InvalidParameterError::new_err(msg)
+        }
+        // A stop requested by Ctrl-C surfaces as Python's own KeyboardInterrupt.
+        Error::Interrupted => PyKeyboardInterrupt::new_err(msg),
     }
 }
 

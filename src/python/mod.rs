@@ -11,6 +11,7 @@ mod electron_impact;
 mod energy_scan;
 mod errors;
 mod evolution;
+mod limits;
 mod photon_beam;
 mod rate_equations;
 mod results;
@@ -35,5 +36,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     electron_impact::register(m)?;
     spectrum::register(m)?;
     scenario::register(m)?;
+    limits::register(m)?;
     Ok(())
 }

@@ -159,11 +159,20 @@ fn evolve_batch<'py>(
         .zip(&elements)
         .map(|(t, e)| (t.get().inner.clone(), *e))
         .collect();
-    let results = guard(py, || {
+    crate::limits::check_memory(
+        "the batch of evolutions",
         cases
-            .par_iter()
-            .map(|(trap, el)| trap.evolve(el, &times, 0))
-            .collect::<Result<Vec<_>>>()
+            .iter()
+            .map(|(_, el)| crate::limits::bytes_for(&[times.len(), el.z() as usize + 1], 8))
+            .fold(0, u64::saturating_add),
+    )?;
+    let results = guard(py, || {
+        crate::interrupt::run_polled(|| {
+            cases
+                .par_iter()
+                .map(|(trap, el)| trap.evolve(el, &times, 0))
+                .collect::<Result<Vec<_>>>()
+        })
     })?;
     traps
         .iter()

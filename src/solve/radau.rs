@@ -33,9 +33,12 @@ use ndarray::Array2;
 use num_complex::Complex64;
 
 use super::banded::{BandMatrix, BandPair, Poles};
+use super::dense::HessenbergPair;
 use super::flux::FluxBalance;
 use super::tridiagonal::ChainPair;
 use crate::error::{Error, Result};
+use crate::interrupt;
+use crate::limits::{check_memory, try_zeros};
 use crate::network::RateNetwork;
 
 /// Partial fractions of the (4,5) Padé approximant of exp, the stability function of the
@@ -63,15 +66,39 @@ pub(crate) const CLIP_LEVEL: f64 = 1e-15;
 /// renormalised away (networks without loss or feed only).
 const DRIFT_LEVEL: f64 = 1e-13;
 const MAX_STEPS: usize = 10_000_000;
+/// Largest relative error of a returned total that is still round-off (see `check_output`).
+const OUTPUT_TOLERANCE: f64 = 1e-9;
 /// Local error ∝ h¹⁰, so step sizes scale with (tolerance / error)^(1/10).
 const ERROR_EXPONENT: f64 = 1.0 / 10.0;
 const SAFETY: f64 = 0.9;
 const MAX_GROWTH: f64 = 5.0;
 
+/// Below this many states every network takes the band path (its pivots from column sums
+/// keep slow modes accurate next to fast ones, and its cost is small anyway).
+pub(crate) const DENSE_MIN_STATES: usize = 64;
+
+/// Whether the Hessenberg path is cheaper: a band LU costs about n·lower·upper per step
+/// size, a Hessenberg LU n²/2 after a one-off reduction of 10n³/3.
+pub(crate) fn use_dense(n: usize, lower: usize, upper: usize) -> bool {
+    n >= DENSE_MIN_STATES && lower.min(n) * upper.min(n) > 8 * n
+}
+
 /// The factorised shifted solves for a step size and its half.
 enum Kernel {
     Chain(ChainPair),
     Band(BandPair),
+    Dense(HessenbergPair),
+}
+
+/// Apply the same call to whichever kernel is in use.
+macro_rules! with_kernel {
+    ($kernel:expr, $k:ident => $body:expr) => {
+        match $kernel {
+            Kernel::Chain($k) => $body,
+            Kernel::Band($k) => $body,
+            Kernel::Dense($k) => $body,
+        }
+    };
 }
 
 /// Takes error-controlled double steps: R(hM)v and R(hM/2)²v from one factorisation pass.
@@ -90,7 +117,7 @@ struct Stepper {
 }
 
 impl Stepper {
-    fn new(network: &RateNetwork) -> Self {
+    fn new(network: &RateNetwork) -> Result<Self> {
         let n = network.n_states();
         let mut m = BandMatrix::zeros(n, network.max_jump_up(), network.max_jump_down());
         let mut fastest: f64 = 0.0;
@@ -108,6 +135,8 @@ impl Stepper {
         }
         let kernel = if m.lower <= 1 && m.upper <= 1 {
             Kernel::Chain(ChainPair::new(&m, network.loss_per_s()))
+        } else if use_dense(n, m.lower, m.upper) {
+            Kernel::Dense(HessenbergPair::new(&m)?)
         } else {
             Kernel::Band(BandPair::new(m, network.loss_per_s()))
         };
@@ -121,7 +150,7 @@ impl Stepper {
             real: REAL_RESIDUE,
             complex: [2.0 * c1, 2.0 * c2],
         };
-        Self {
+        Ok(Self {
             balance: FluxBalance::new(network),
             kernel,
             fastest,
@@ -131,7 +160,7 @@ impl Stepper {
             rate: vec![0.0; n],
             mid_rate: vec![0.0; n],
             increment: [vec![0.0; n], vec![0.0; n]],
-        }
+        })
     }
 
     /// Take `v` as the current state: compute its rate Mv + s and return ‖Mv + s‖₁.
@@ -164,10 +193,7 @@ impl Stepper {
                     "rate × time overflows; rates or times are too large",
                 ));
             }
-            match &mut self.kernel {
-                Kernel::Chain(k) => k.factor(hs),
-                Kernel::Band(k) => k.factor(hs),
-            }
+            with_kernel!(&mut self.kernel, k => k.factor(hs));
             self.factored_h = h;
         }
         let [inc0, inc1] = &mut self.increment;
@@ -175,19 +201,13 @@ impl Stepper {
         // The rate at mid is R(hM/2)(Mv + s), since M commutes with R(hM/2): it comes from
         // the same solves, with round-off relative to the rate.
         let (rate, mid_rate) = (&self.rate, &mut self.mid_rate);
-        match &mut self.kernel {
-            Kernel::Chain(k) => k.combine::<0>(hs, w, rw, rate, [inc0, inc1], mid_rate),
-            Kernel::Band(k) => k.combine::<0>(hs, w, rw, rate, [inc0, inc1], mid_rate),
-        }
+        with_kernel!(&mut self.kernel, k => k.combine::<0>(hs, w, rw, rate, [inc0, inc1], mid_rate));
         for i in 0..v.len() {
             big[i] = v[i] + inc0[i];
             mid[i] = v[i] + inc1[i];
         }
         let unused = &mut self.rate;
-        match &mut self.kernel {
-            Kernel::Chain(k) => k.combine::<1>(hs, w, rw, mid_rate, [inc0, inc1], unused),
-            Kernel::Band(k) => k.combine::<1>(hs, w, rw, mid_rate, [inc0, inc1], unused),
-        }
+        with_kernel!(&mut self.kernel, k => k.combine::<1>(hs, w, rw, mid_rate, [inc0, inc1], unused));
         for ((out, &m), &d) in half.iter_mut().zip(mid.iter()).zip(inc1.iter()) {
             *out = m + d;
         }
@@ -224,11 +244,15 @@ pub(crate) fn propagate_with_stats(
     times_s: &[f64],
 ) -> Result<(Array2<f64>, Stats)> {
     let n = network.n_states();
+    check_memory(
+        "the evolution",
+        super::evolve_memory_bytes(network, times_s.len()),
+    )?;
     let active = reachable(network, initial);
     if active.len() == n {
         return propagate_all(network, initial, times_s);
     }
-    let mut out = Array2::zeros((times_s.len(), n));
+    let mut out = try_zeros("the populations", times_s.len(), n)?;
     if active.is_empty() {
         return Ok((out, Stats::default()));
     }
@@ -269,12 +293,12 @@ fn propagate_all(
     times_s: &[f64],
 ) -> Result<(Array2<f64>, Stats)> {
     let n = network.n_states();
-    let mut out = Array2::zeros((times_s.len(), n));
+    let mut out = try_zeros("the populations", times_s.len(), n)?;
     let mut stats = Stats {
         n_active: n,
         ..Stats::default()
     };
-    let mut stepper = Stepper::new(network);
+    let mut stepper = Stepper::new(network)?;
     let conserving = !network.has_loss_or_feed();
     let mass = initial.iter().sum::<f64>();
     let mut h = if stepper.fastest > 0.0 {
@@ -293,6 +317,7 @@ fn propagate_all(
     for (k, &t_out) in times_s.iter().enumerate() {
         // ‖y(t_out) − y(t)‖₁ ≤ (t_out − t)·‖Mv + s‖₁ (module docs).
         while t < t_out && (t_out - t) * speed > LOCAL_TOLERANCE * size {
+            interrupt::check()?;
             stats.steps += 1;
             if stats.steps > MAX_STEPS {
                 return Err(Error::invalid(
@@ -331,7 +356,10 @@ fn propagate_all(
                     "the populations became non-finite; rates or feeds are too large",
                 ));
             }
-            let tol = LOCAL_TOLERANCE * size.max(new_size);
+            // Populations below the smallest normal number are flushed to zero (below), so
+            // the absolute tolerance need not go below it either: a decayed population
+            // does not force steps that resolve subnormal round-off.
+            let tol = (LOCAL_TOLERANCE * size.max(new_size)).max(f64::MIN_POSITIVE);
             let ratio = if err > 0.0 {
                 SAFETY * (tol / err).powf(ERROR_EXPONENT)
             } else {
@@ -340,6 +368,7 @@ fn propagate_all(
             if err <= tol {
                 t = if hits { t_out } else { t + h_step };
                 std::mem::swap(&mut y, &mut half);
+                flush_underflow(&mut y);
                 if conserving {
                     renormalise(&mut y, mass);
                 }
@@ -357,15 +386,59 @@ fn propagate_all(
                 h = h_step * ratio.clamp(0.1, SAFETY);
             }
         }
-        for (o, &v) in out.row_mut(k).iter_mut().zip(&y) {
+        let mut row = out.row_mut(k);
+        for (o, &v) in row.iter_mut().zip(&y) {
             *o = if v < 0.0 && v >= -CLIP_LEVEL * size {
                 0.0
             } else {
                 v
             };
         }
+        check_output(
+            row.as_slice().unwrap_or(&[]),
+            mass,
+            t_out,
+            network,
+            conserving,
+        )?;
     }
     Ok((out, stats))
+}
+
+/// Populations below the smallest normal f64 are exactly zero: their round-off is no longer
+/// relative, and a decay towards underflow (loss over t ≳ 700/loss) must end at 0, not in
+/// a step size that shrinks to resolve subnormal noise.
+fn flush_underflow(y: &mut [f64]) {
+    for v in y.iter_mut() {
+        if v.abs() < f64::MIN_POSITIVE {
+            *v = 0.0;
+        }
+    }
+}
+
+/// The last line of defence: a row that is not finite, negative beyond round-off, or (for
+/// a conserving network) off its total, is an error and never a result.
+fn check_output(
+    row: &[f64],
+    mass: f64,
+    t: f64,
+    network: &RateNetwork,
+    conserving: bool,
+) -> Result<()> {
+    let total: f64 = row.iter().sum();
+    let bound = mass + t * network.feed_per_s().iter().sum::<f64>();
+    let bad = row.iter().any(|v| !v.is_finite() || *v < 0.0)
+        || !total.is_finite()
+        || total > bound * (1.0 + OUTPUT_TOLERANCE) + f64::MIN_POSITIVE
+        || (conserving && (total - mass).abs() > OUTPUT_TOLERANCE * mass);
+    if bad {
+        return Err(Error::invalid(
+            "times_s",
+            t,
+            "the populations lost their f64 accuracy at this time (round-off of the fastest rates outgrew them); use shorter times",
+        ));
+    }
+    Ok(())
 }
 
 /// Remove round-off drift of the total; larger drift is left in place so tests expose it.

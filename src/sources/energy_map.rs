@@ -47,17 +47,28 @@ pub fn energy_time_map(
     for q in targets {
         element.check_charge(i64::from(*q), element.z())?;
     }
-    let rows: Vec<Vec<f64>> = energies_ev
-        .par_iter()
-        .map(|e| {
-            let pops = evolve_at(*e)?;
-            Ok(pops
-                .rows()
-                .into_iter()
-                .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
-                .collect())
-        })
-        .collect::<Result<_>>()?;
+    crate::limits::check_memory(
+        "the energy × time map",
+        crate::solve::energy_map_memory_bytes(
+            energies_ev.len(),
+            times_s.len(),
+            element.z() as usize + 1,
+        ),
+    )?;
+    let rows: Vec<Vec<f64>> = crate::interrupt::run_polled(|| {
+        energies_ev
+            .par_iter()
+            .map(|e| {
+                crate::interrupt::check()?;
+                let pops = evolve_at(*e)?;
+                Ok(pops
+                    .rows()
+                    .into_iter()
+                    .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
+                    .collect())
+            })
+            .collect::<Result<_>>()
+    })?;
     let mut best = (0, 0, f64::NEG_INFINITY);
     for (i, row) in rows.iter().enumerate() {
         for (k, v) in row.iter().enumerate() {

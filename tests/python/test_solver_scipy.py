@@ -285,3 +285,37 @@ def test_property_agreement_conservation_and_non_negativity(problem):
     np.testing.assert_allclose(got, expected, rtol=0.0, atol=AGREEMENT)
     np.testing.assert_allclose(got.sum(axis=1), initial.sum(), rtol=0.0, atol=1e-12)
     assert (got >= 0.0).all()
+
+
+def random_dense_rates(rng, n, low, high):
+    """Every pair connected, rates log-uniform in 10^low ... 10^high s^-1, quantised."""
+    rates = 10.0 ** rng.uniform(low, high, (n, n))
+    np.fill_diagonal(rates, 0.0)
+    return quantise(rates)
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_dense_networks_match_scipy_expm(seed):
+    # 100 fully connected states take the Hessenberg path (see the solver's docs).
+    rng = np.random.default_rng(300 + seed)
+    n = 100
+    rates = random_dense_rates(rng, n, -2.0, 2.0)
+    initial = rng.dirichlet(np.ones(n))
+    got = chargecast.solve_rate_equations(rates, initial, TIMES)
+    expected = expm_reference(rates, initial, TIMES)
+    np.testing.assert_allclose(got, expected, rtol=0.0, atol=AGREEMENT)
+    assert (got >= 0.0).all()
+
+
+@pytest.mark.parametrize("seed", range(2))
+def test_stiff_dense_networks_with_loss_match_scipy_radau(seed):
+    rng = np.random.default_rng(400 + seed)
+    n = 80
+    rates = random_dense_rates(rng, n, -4.0, 4.0)
+    loss = quantise(10.0 ** rng.uniform(-3, 0, n))
+    initial = np.zeros(n)
+    initial[0] = 1.0
+    times = np.geomspace(1e-6, 1e2, 25)
+    got = chargecast.solve_rate_equations(rates, initial, times, loss_per_s=loss)
+    expected = radau_reference(rates, initial, times, loss=loss)
+    np.testing.assert_allclose(got, expected, rtol=0.0, atol=AGREEMENT)
