@@ -11,6 +11,7 @@ pub mod atoms;
 pub mod constants;
 pub mod error;
 pub mod network;
+pub mod plan;
 pub mod processes;
 pub mod solve;
 pub mod sources;

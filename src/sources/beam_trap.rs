@@ -20,6 +20,26 @@ use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
 use crate::processes::relaxation::vacancy_relaxation;
 use crate::solve::{evolve, steady_state};
 
+/// Ion temperature kT (eV) of a trap when none is given.
+pub const DEFAULT_ION_TEMPERATURE_EV: f64 = 50.0;
+/// Residual-gas temperature (K) when none is given (room temperature).
+pub const DEFAULT_GAS_TEMPERATURE_K: f64 = 300.0;
+/// Fraction of the electron space charge compensated by ions when none is given.
+pub const DEFAULT_COMPENSATION: f64 = 0.5;
+
+/// The one rule for the space-charge compensation: a fraction 0…1.
+pub fn require_compensation(compensation: f64) -> Result<f64> {
+    if compensation.is_finite() && (0.0..=1.0).contains(&compensation) {
+        Ok(compensation)
+    } else {
+        Err(Error::invalid(
+            "compensation",
+            compensation,
+            "must lie in 0..=1",
+        ))
+    }
+}
+
 /// One residual-gas component.
 #[derive(Clone, Debug)]
 pub struct GasComponent {
@@ -98,8 +118,8 @@ impl BeamTrap {
             length_m,
             residual_gas,
             ion_temperature_ev,
-            gas_temperature_k: 300.0,
-            compensation: 0.5,
+            gas_temperature_k: DEFAULT_GAS_TEMPERATURE_K,
+            compensation: DEFAULT_COMPENSATION,
             lotz_constants: None,
             processes: Processes::default(),
             loss_per_s: Vec::new(),
@@ -119,13 +139,7 @@ impl BeamTrap {
     /// Check the optional settings against an element.
     fn check(&self, element: &Element) -> Result<()> {
         require_positive("gas_temperature_k", self.gas_temperature_k)?;
-        if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid(
-                "compensation",
-                self.compensation,
-                "must lie in 0..=1",
-            ));
-        }
+        require_compensation(self.compensation)?;
         let n = element.z() as usize + 1;
         if !self.loss_per_s.is_empty() && self.loss_per_s.len() != n {
             return Err(Error::invalid(
@@ -304,13 +318,7 @@ impl BeamTrap {
     /// the trap filled with ions until their charge compensates the fraction f of the
     /// electron space charge, shared as the fractions say (neutrals are not trapped).
     pub fn ions_per_extraction(&self, fractions: &[f64]) -> Result<Vec<f64>> {
-        if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid(
-                "compensation",
-                self.compensation,
-                "must lie in 0..=1",
-            ));
-        }
+        require_compensation(self.compensation)?;
         let charge_sum: f64 = fractions
             .iter()
             .enumerate()
