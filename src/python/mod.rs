@@ -8,7 +8,7 @@ mod convert;
 mod engine;
 mod errors;
 mod photon;
-mod scenario;
+mod plan;
 mod spectrum;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
@@ -22,6 +22,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     engine::register(m)?;
     photon::register(m)?;
     spectrum::register(m)?;
-    scenario::register(m)?;
+    plan::register(m)?;
     Ok(())
 }
