@@ -65,6 +65,8 @@ fn plain_serde_message(message: &str) -> String {
         .replace("expected a sequence", "expected an array [ … ]")
         .replace("expected a map", "expected a table")
         .replace(", expected one of", ": allowed")
+        // Tables with one or two fields: "expected `a`" / "expected `a` or `b`".
+        .replace("`, expected `", "`: allowed `")
 }
 
 struct Checker<'p, 'a> {
