@@ -42,10 +42,10 @@ def _evolution(report: Any) -> Any:
 def _energy_scan(report: Any) -> Any:
     """The energy × time map as an EnergyScan (PhotonEnergyScan for a photon beam)."""
     sc = report.best_energy
-    if report.scenario.source.kind == "photon_beam":
-        from chargecast.photon import PhotonEnergyScan as cls
-    else:
-        from chargecast.trap import EnergyScan as cls
+    from chargecast.photon import PhotonEnergyScan
+    from chargecast.trap import EnergyScan
+
+    cls: Any = PhotonEnergyScan if report.scenario.source.kind == "photon_beam" else EnergyScan
     s = report.scenario
     return cls(
         s.target.symbol,
@@ -153,7 +153,9 @@ def plot_yields(report: Any, ax: Any | None = None) -> Any:
     ax.set_xlabel("charge state")
     ax.set_ylabel("fraction of the ions made")
     ax.legend(fontsize=8, frameon=False, title="species")
-    ax.set_title(f"charge yields of one {report.scenario.source.energy_ev:g} eV electron collision", fontsize=10)
+    ax.set_title(
+        f"charge yields of one {report.scenario.source.energy_ev:g} eV electron collision", fontsize=10
+    )
     return ax
 
 
@@ -170,7 +172,9 @@ def plot_ladder(report: Any, ax: Any | None = None) -> Any:
     q = int(report.scenario.target.charge)
     charge = np.array([st.charge for st in lad.steps], dtype=float)
     sigma = np.array([st.cross_section_cm2 for st in lad.steps], dtype=float)
-    t = np.array([np.nan if st.breeding_time_s is None else st.breeding_time_s for st in lad.steps], dtype=float)
+    t = np.array(
+        [np.nan if st.breeding_time_s is None else st.breeding_time_s for st in lad.steps], dtype=float
+    )
     kind = report.scenario.source.kind
     times_known = bool(np.isfinite(t).any())
     if ax is None and times_known:
@@ -206,7 +210,9 @@ def plot_ladder(report: Any, ax: Any | None = None) -> Any:
         return ax_s
     ok = np.isfinite(t) & (t > 0)
     if ok.any():
-        ax.semilogy(charge[ok], t[ok], "o-", color=PALETTE[0], ms=3, lw=1, label="time to reach q+ from the neutral")
+        ax.semilogy(
+            charge[ok], t[ok], "o-", color=PALETTE[0], ms=3, lw=1, label="time to reach q+ from the neutral"
+        )
     blocked = np.isinf(t)
     if blocked.any():
         ax.plot(

@@ -50,7 +50,8 @@ def scenario_dict(scenario: Any) -> dict[str, Any]:
         "description": s.description,
         "target": _fields(s.target, ("isotope", "symbol", "z", "mass_number", "charge")),
         "species": [
-            _fields(sp, ("name", "symbol", "z", "mass_number", "amount", "initial_charge")) for sp in s.species
+            _fields(sp, ("name", "symbol", "z", "mass_number", "amount", "initial_charge"))
+            for sp in s.species
         ],
         "source": {"kind": src.kind, **_fields(src, _SOURCE_FIELDS[src.kind])},
         "residual_gas_pa": s.residual_gas_pa,
@@ -85,7 +86,6 @@ def to_dict(report: Any) -> dict[str, Any]:
     """
     r = report
     s = r.scenario
-    kind = s.source.kind
     steps = r.ladder.steps
     ladder = {
         "charge": [st.charge for st in steps],
@@ -112,7 +112,8 @@ def to_dict(report: Any) -> dict[str, Any]:
         "recommended_charge_state": None
         if rec is None
         else _fields(
-            rec, ("charge", "label", "a_over_q", "m_over_q", "fraction", "purity", "score", "main_contaminant")
+            rec,
+            ("charge", "label", "a_over_q", "m_over_q", "fraction", "purity", "score", "main_contaminant"),
         ),
         "notes": r.notes,
         "cautions": r.cautions,

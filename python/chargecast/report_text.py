@@ -127,7 +127,9 @@ class _TextReport:
         )
         out.append(f"  species: {species}")
         if s.residual_gas_pa:
-            out.append("  residual gas: " + ", ".join(f"{k} {v:.3g} Pa" for k, v in s.residual_gas_pa.items()))
+            out.append(
+                "  residual gas: " + ", ".join(f"{k} {v:.3g} Pa" for k, v in s.residual_gas_pa.items())
+            )
         return out
 
     def ladder(self) -> list[str]:
@@ -147,7 +149,8 @@ class _TextReport:
             )
         elif kind == "photon_beam":
             head = (
-                f"Stepwise photoionization of {sym} at {e:.6g} eV, {s.source.flux_cm2_s:.3g} photons cm⁻² s⁻¹ "
+                f"Stepwise photoionization of {sym} at {e:.6g} eV, "
+                f"{s.source.flux_cm2_s:.3g} photons cm⁻² s⁻¹ "
                 "(one charge per photon: an upper bound on the time)"
             )
             sigma_name, time_name = "σ photo (cm²)", "time (s)"
@@ -217,7 +220,9 @@ class _TextReport:
         evo = r.target_evolution
         if evo is None:
             y = r.fractions_at_extraction[self.s.target_species.name]
-            rows = [[f"{c}+" + (" ◀" if c == q else ""), _g(float(f), ".4f")] for c, f in enumerate(y) if f > 0.01]
+            rows = [
+                [f"{c}+" + (" ◀" if c == q else ""), _g(float(f), ".4f")] for c, f in enumerate(y) if f > 0.01
+            ]
             if not rows:
                 return []
             return [
@@ -264,7 +269,8 @@ class _TextReport:
             )
             out.append(
                 f"  near the scenario's {sc.own_energy_ev:.5g} eV ({e[k]:.4g} eV on the grid): "
-                f"σ({q}+) = {sc.target_cross_section_cm2[k]:.3e} cm², {sc.target_share[k]:.4f} of the ions made"
+                f"σ({q}+) = {sc.target_cross_section_cm2[k]:.3e} cm², "
+                f"{sc.target_share[k]:.4f} of the ions made"
             )
             return out
         line = f"  best: {sc.best_energy_ev:.5g} eV"
@@ -307,7 +313,16 @@ class _TextReport:
 
     def neighbourhood(self) -> list[str]:
         o = self.r.neighbourhood
-        header = ["ion", "m/q (u/e)", "A/q", "intensity", "Δ(m/q)", "sep. (FWHM)", "contamination", "R needed"]
+        header = [
+            "ion",
+            "m/q (u/e)",
+            "A/q",
+            "intensity",
+            "Δ(m/q)",
+            "sep. (FWHM)",
+            "contamination",
+            "R needed",
+        ]
         rows = [
             [
                 i.ion + (" (gas)" if i.residual_gas else ""),
@@ -349,7 +364,9 @@ class _TextReport:
                 f"{rk.fraction:.4f}",
                 f"{rk.purity:.4f}",
                 f"{rk.score:.4f}",
-                "–" if rk.main_contaminant is None else f"{rk.main_contaminant} ({rk.main_contaminant_share:.2g})",
+                "–"
+                if rk.main_contaminant is None
+                else f"{rk.main_contaminant} ({rk.main_contaminant_share:.2g})",
             ]
             for rk in [rk for rk in self.r.ranking if rk.eligible][:8]
         ]

@@ -53,7 +53,14 @@ def line_of(text: str, whole_line: str) -> int:
 def test_good_scenario_fills_defaults() -> None:
     s = Scenario.from_text(GOOD, "run.toml")
     t = s.target
-    assert (t.isotope, t.symbol, t.z, t.mass_number, t.charge, t.label) == ("40Ar", "Ar", 18, 40, 16, "40Ar16+")
+    assert (t.isotope, t.symbol, t.z, t.mass_number, t.charge, t.label) == (
+        "40Ar",
+        "Ar",
+        18,
+        40,
+        16,
+        "40Ar16+",
+    )
     assert [sp.name for sp in s.species] == ["40Ar"]
     assert s.source.kind == "beam_trap" and s.source.compensation == 0.5
     # defaults of the source (ion temperature 50 eV, gas temperature 300 K) come from the core
