@@ -5,10 +5,10 @@ use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target}
 use crate::atoms::Element;
 use crate::error::Result;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
+use crate::sources::appearance_curves;
 use crate::sources::breeding::breeding_ladder;
 use crate::sources::electron_beam::current_density_a_cm2;
 use crate::sources::photon_beam::photon_thresholds;
-use crate::sources::single_collision::appearance_curves;
 use crate::sources::Source;
 use crate::spectrum::{
     aq_lines, clean_charge_states, overlaps, resolve_isotope, AcceptanceWindow, OverlapSettings,

@@ -17,7 +17,7 @@ use energy_map::{energy_time_map_with_progress, EnergyTimeMap};
 pub use beam_trap::BeamTrap;
 pub use electron_beam::ElectronBeam;
 pub use photon_beam::PhotonBeam;
-pub use single_collision::ElectronImpactSource;
+pub use single_collision::{appearance_curves, ElectronImpactSource};
 
 /// One of the core sources, as a scenario builds it. Each variant is named like the
 /// scenario table, the module and the class stem of its source.
