@@ -38,6 +38,7 @@ pub mod error;
 pub mod interrupt;
 pub mod limits;
 pub mod network;
+pub mod plan;
 pub mod processes;
 pub mod solve;
 pub mod sources;

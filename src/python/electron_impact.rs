@@ -354,14 +354,25 @@ fn curves<'py>(
     }
     let e = array1_arg("energies_ev", energies_ev)?;
     let sigma = guard(py, || appearance_curves(el, &e, energy_spread_ev))?;
+    curves_result(py, el, e, energy_spread_ev, sigma)
+}
+
+/// Appearance curves `sigma` [energies, Z+1] (cm²) as the Python result object.
+pub(crate) fn curves_result<'py>(
+    py: Python<'py>,
+    element: &'static Element,
+    energies_ev: Vec<f64>,
+    energy_spread_ev: f64,
+    sigma: ndarray::Array2<f64>,
+) -> PyResult<Bound<'py, PyAny>> {
     let n = sigma.ncols();
     let top = (1..n)
         .rev()
         .find(|&q| sigma.column(q).iter().any(|s| *s > 0.0))
         .unwrap_or(1);
     let value = PyAppearanceCurves {
-        element: el,
-        energies_ev: e,
+        element,
+        energies_ev,
         energy_spread_ev,
         sigma,
         top,

@@ -9,6 +9,7 @@ use super::convert::{array1_arg, array2_arg, element_arg, float_arg, int_arg};
 use super::{matrix_to_py, to_py};
 use crate::atoms::Element;
 use crate::error::Error;
+use crate::solve::evolution;
 
 /// Charge-state fractions of one element over confinement time.
 ///
@@ -42,23 +43,11 @@ impl PyEvolution {
     }
 
     fn peak_of(&self, q: usize) -> (f64, f64) {
-        let col = self.fractions.column(q);
-        if col.is_empty() {
-            return (f64::NAN, f64::NAN);
-        }
-        let mut best = 0;
-        for (i, v) in col.iter().enumerate() {
-            if *v > col[best] {
-                best = i;
-            }
-        }
-        (self.times_s[best], col[best])
+        evolution::peak(&self.times_s, self.fractions.view(), q)
     }
 
     fn dominant(&self, threshold: f64) -> Vec<usize> {
-        (0..self.fractions.ncols())
-            .filter(|&q| self.fractions.column(q).iter().any(|f| *f > threshold))
-            .collect()
+        evolution::dominant_charges(self.fractions.view(), threshold)
     }
 
     /// An Evolution object (the Python package's class when it is loaded).
@@ -163,21 +152,7 @@ impl PyEvolution {
     /// ndarray, shape (T,)
     ///     Mean charge (elementary charges); 0 where every fraction is 0.
     fn mean_charge<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        let out = self
-            .fractions
-            .rows()
-            .into_iter()
-            .map(|r| {
-                let total: f64 = r.sum();
-                let charge: f64 = r.iter().enumerate().map(|(q, f)| q as f64 * f).sum();
-                if total > 0.0 {
-                    charge / total
-                } else {
-                    0.0
-                }
-            })
-            .collect();
-        to_py(py, out)
+        to_py(py, evolution::mean_charge(self.fractions.view()))
     }
 
     /// Time (s) and value of the largest fraction of one charge state on the time grid.
@@ -224,21 +199,10 @@ impl PyEvolution {
             )
             .into());
         }
-        // The first grid time at or after t; equal neighbours give that row exactly.
-        let k = self.times_s.partition_point(|x| *x < t);
-        let row = if self.times_s[k] == t || k == 0 {
-            self.fractions.row(k).to_vec()
-        } else {
-            // numpy.interp's arithmetic (slope × offset + left value), so results match it.
-            let (t0, t1) = (self.times_s[k - 1], self.times_s[k]);
-            self.fractions
-                .row(k - 1)
-                .iter()
-                .zip(self.fractions.row(k))
-                .map(|(a, b)| (b - a) / (t1 - t0) * (t - t0) + a)
-                .collect()
-        };
-        Ok(to_py(py, row))
+        Ok(to_py(
+            py,
+            evolution::interpolate(&self.times_s, self.fractions.view(), t),
+        ))
     }
 
     /// Charge states whose fraction ever exceeds ``threshold``.

@@ -13,9 +13,9 @@ mod errors;
 mod evolution;
 mod limits;
 mod photon_beam;
+mod plan;
 mod rate_equations;
 mod results;
-mod scenario;
 mod spectrum;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
@@ -35,7 +35,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     photon_beam::register(m)?;
     electron_impact::register(m)?;
     spectrum::register(m)?;
-    scenario::register(m)?;
+    plan::register(m)?;
     limits::register(m)?;
     Ok(())
 }

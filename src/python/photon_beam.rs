@@ -318,6 +318,13 @@ fn routes(row: &ChargeThreshold) -> Vec<PyThresholdRoute> {
         .collect()
 }
 
+impl PyChargeThreshold {
+    /// The Python row of one core threshold (also used by the scenario report).
+    pub(crate) fn from_core(inner: ChargeThreshold) -> Self {
+        PyChargeThreshold { inner }
+    }
+}
+
 #[pymethods]
 impl PyChargeThreshold {
     /// The charge state.

@@ -57,6 +57,7 @@
 
 mod banded;
 mod dense;
+pub mod evolution;
 mod flux;
 mod radau;
 mod steady;

@@ -56,6 +56,19 @@ pub const DEFAULT_GAS_TEMPERATURE_K: f64 = 300.0;
 /// Fraction of the electron space charge compensated by ions when none is given.
 pub const DEFAULT_COMPENSATION: f64 = 0.5;
 
+/// The one rule for the space-charge compensation: a fraction 0…1.
+pub fn require_compensation(compensation: f64) -> Result<f64> {
+    if compensation.is_finite() && (0.0..=1.0).contains(&compensation) {
+        Ok(compensation)
+    } else {
+        Err(Error::invalid(
+            "compensation",
+            compensation,
+            "must lie in 0..=1",
+        ))
+    }
+}
+
 /// One residual-gas component.
 #[derive(Clone, Debug)]
 pub struct GasComponent {
@@ -208,13 +221,7 @@ impl BeamTrap {
     /// escape rates and the feed rate.
     pub fn check_settings(&self) -> Result<()> {
         require_positive("gas_temperature_k", self.gas_temperature_k)?;
-        if !(0.0..=1.0).contains(&self.compensation) {
-            return Err(Error::invalid(
-                "compensation",
-                self.compensation,
-                "must lie in 0..=1",
-            ));
-        }
+        require_compensation(self.compensation)?;
         for (q, loss) in self.loss_per_s.iter().enumerate() {
             require_non_negative(&format!("loss_per_s[{q}]"), *loss)?;
         }

@@ -29,6 +29,32 @@ pub fn energy_time_map(
     times_s: &[f64],
     evolve_at: impl Fn(f64) -> Result<Array2<f64>> + Sync,
 ) -> Result<EnergyTimeMap> {
+    energy_time_map_with_progress(
+        element,
+        targets,
+        energies_name,
+        energies_ev,
+        times_s,
+        evolve_at,
+        &mut |_, _| {},
+    )
+}
+
+/// Chunks the energies are cut into, so progress can be reported between them while each
+/// chunk still runs in parallel.
+const PROGRESS_CHUNKS: usize = 8;
+
+/// [`energy_time_map`], calling `progress(energies done, energies in all)` on the calling
+/// thread before the first chunk of energies and after each one.
+pub fn energy_time_map_with_progress(
+    element: &Element,
+    targets: &[u32],
+    energies_name: &str,
+    energies_ev: &[f64],
+    times_s: &[f64],
+    evolve_at: impl Fn(f64) -> Result<Array2<f64>> + Sync,
+    progress: &mut dyn FnMut(usize, usize),
+) -> Result<EnergyTimeMap> {
     require_all_positive(energies_name, energies_ev)?;
     if energies_ev.is_empty() || times_s.is_empty() {
         return Err(Error::invalid(
@@ -55,20 +81,28 @@ pub fn energy_time_map(
             element.z() as usize + 1,
         ),
     )?;
-    let rows: Vec<Vec<f64>> = crate::interrupt::run_polled(|| {
-        energies_ev
-            .par_iter()
-            .map(|e| {
-                crate::interrupt::check()?;
-                let pops = evolve_at(*e)?;
-                Ok(pops
-                    .rows()
-                    .into_iter()
-                    .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
-                    .collect())
-            })
-            .collect::<Result<_>>()
-    })?;
+    let n = energies_ev.len();
+    let chunk = n.div_ceil(PROGRESS_CHUNKS);
+    let mut rows: Vec<Vec<f64>> = Vec::with_capacity(n);
+    progress(0, n);
+    for energies in energies_ev.chunks(chunk) {
+        let part: Vec<Vec<f64>> = crate::interrupt::run_polled(|| {
+            energies
+                .par_iter()
+                .map(|e| {
+                    crate::interrupt::check()?;
+                    let pops = evolve_at(*e)?;
+                    Ok(pops
+                        .rows()
+                        .into_iter()
+                        .map(|r| targets.iter().map(|q| r[*q as usize]).sum())
+                        .collect())
+                })
+                .collect::<Result<_>>()
+        })?;
+        rows.extend(part);
+        progress(rows.len(), n);
+    }
     let mut best = (0, 0, f64::NEG_INFINITY);
     for (i, row) in rows.iter().enumerate() {
         for (k, v) in row.iter().enumerate() {
@@ -85,4 +119,41 @@ pub fn energy_time_map(
         best_time_s: times_s[best.1],
         best_fraction: best.2,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::atoms::element;
+
+    #[test]
+    fn progress_counts_every_energy_once_and_ends_complete() {
+        let he = element("He").unwrap();
+        let energies: Vec<f64> = (1..=20).map(f64::from).collect();
+        let mut seen = Vec::new();
+        let map = energy_time_map_with_progress(
+            he,
+            &[1],
+            "energies_ev",
+            &energies,
+            &[1.0, 2.0],
+            // A made-up evolution whose 1+ fraction is e/100 at every time.
+            |e| {
+                Ok(Array2::from_shape_fn((2, 3), |(_, q)| {
+                    if q == 1 {
+                        e / 100.0
+                    } else {
+                        0.0
+                    }
+                }))
+            },
+            &mut |done, total| seen.push((done, total)),
+        )
+        .unwrap();
+        assert_eq!(seen.first(), Some(&(0, 20)));
+        assert_eq!(seen.last(), Some(&(20, 20)));
+        assert!(seen.windows(2).all(|w| w[0].0 < w[1].0));
+        assert_eq!(map.best_energy_ev, 20.0);
+        assert_eq!(map.fraction.len(), 20);
+    }
 }

@@ -82,11 +82,11 @@ def test_console_script_runs_plan_and_example(tmp_path: Path) -> None:
 def test_scenario_error_exit_status_and_message(tmp_path: Path) -> None:
     bad = tmp_path / "bad.toml"
     bad.write_text(
-        '[target]\nisotope = "129Xe"\ncharge = 43\n\n[trap]\nenergy_ev = "high"\n', encoding="utf-8"
+        '[target]\nisotope = "129Xe"\ncharge = 43\n\n[beam_trap]\nenergy_ev = "high"\n', encoding="utf-8"
     )
     r = run("plan", str(bad))
     assert r.returncode == 2
-    assert "bad.toml" in r.stderr and "line 6" in r.stderr and "trap.energy_ev" in r.stderr
+    assert "bad.toml" in r.stderr and "line 6" in r.stderr and "beam_trap.energy_ev" in r.stderr
     assert r.stdout == ""
 
 

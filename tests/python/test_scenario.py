@@ -18,7 +18,7 @@ title = "argon test"
 isotope = "40Ar"
 charge = 16
 
-[trap]
+[beam_trap]
 energy_ev = 6000.0
 current_a = 0.1
 current_density_a_cm2 = 300.0
@@ -52,31 +52,43 @@ def line_of(text: str, whole_line: str) -> int:
 
 def test_good_scenario_fills_defaults() -> None:
     s = Scenario.from_text(GOOD, "run.toml")
-    assert s.target == {"isotope": "40Ar", "symbol": "Ar", "z": 18, "mass_number": 40, "charge": 16}
-    assert [sp["name"] for sp in s.species] == ["40Ar"]
-    assert s.source["kind"] == "trap" and s.source["compensation"] == 0.5
-    assert s.separator["peak_shape"] == "gaussian"
+    t = s.target
+    assert (t.isotope, t.symbol, t.z, t.mass_number, t.charge, t.label) == (
+        "40Ar",
+        "Ar",
+        18,
+        40,
+        16,
+        "40Ar16+",
+    )
+    assert [sp.name for sp in s.species] == ["40Ar"]
+    assert s.source.kind == "beam_trap" and s.source.compensation == 0.5
+    # defaults of the source (ion temperature 50 eV, gas temperature 300 K) come from the core
+    assert (s.source.ion_temperature_ev, s.source.gas_temperature_k) == (50.0, 300.0)
+    assert s.source.photon_energy_ev is None
+    assert s.separator.peak_shape == "gaussian"
     assert (
         s.times_s[0] == pytest.approx(1e-4) and s.times_s[-1] == pytest.approx(5.0) and len(s.times_s) == 120
     )
     assert s.residual_elements == {"H": 1.0}
-    assert s.lines["trap.energy_ev"] == line_of(GOOD, "energy_ev = 6000.0")
+    assert s.lines["beam_trap.energy_ev"] == line_of(GOOD, "energy_ev = 6000.0")
 
 
 @pytest.mark.parametrize(
     ("old", "new", "field", "allowed"),
     [
         # an unknown field: the message lists the allowed ones
-        ("energy_ev = 6000.0", "energy_kev = 6.0", "trap.energy_kev", "energy_ev"),
+        ("energy_ev = 6000.0", "energy_kev = 6.0", "beam_trap.energy_kev", "energy_ev"),
         # a wrong type
         ("charge = 16", 'charge = "sixteen"', "target.charge", "whole number"),
-        ("length_m = 0.4", 'length_m = "long"', "trap.length_m", "number"),
+        ("length_m = 0.4", 'length_m = "long"', "beam_trap.length_m", "number"),
+        ("length_m = 0.4", "length_m = 0.4\ncompensation = 1.5", "beam_trap.compensation", "0..=1"),
         # an unknown element in the target and in a gas
         ('isotope = "40Ar"', 'isotope = "40Zz"', "target.isotope", "symbol"),
         ("H2 = 1e-8", "SF6 = 1e-8", "residual_gas_pa.SF6", "H2"),
         # values out of range
         ("charge = 16", "charge = 19", "target.charge", "1..=18"),
-        ("current_a = 0.1", "current_a = -0.1", "trap.current_a", "> 0"),
+        ("current_a = 0.1", "current_a = -0.1", "beam_trap.current_a", "> 0"),
         ("points = 12", "points = 1", "energy_scan.points", "2..="),
         (
             "resolving_power = 300.0",
@@ -110,7 +122,7 @@ def test_structural_errors() -> None:
         GOOD.replace("length_m = 0.4", "length_m = 0.4\nradius_m = 1e-4")
     )
     assert "missing table [target]" in error_of(GOOD.replace('[target]\nisotope = "40Ar"\ncharge = 16\n', ""))
-    assert "exactly one of [trap]" in error_of(GOOD + "\n[single_collision]\nenergy_ev = 70.0\n")
+    assert "exactly one of [beam_trap]" in error_of(GOOD + "\n[electron_impact]\nenergy_ev = 70.0\n")
     assert "line 2" in error_of('[target]\nisotope = "40Ar\n')  # unterminated string
     # the target isotope must come from some species
     msg = error_of(GOOD + '\n[[species]]\nname = "Ne"\n')
@@ -129,7 +141,7 @@ def test_bundled_scenarios_parse() -> None:
     assert {"demo", "reference"} <= set(found)
     for path in found.values():
         s = cc.load_scenario(path)
-        assert s.target["charge"] >= 1
+        assert s.target.charge >= 1
 
 
 def test_reference_file_covers_every_documented_field() -> None:
@@ -145,9 +157,9 @@ def test_reference_file_covers_every_documented_field() -> None:
         "ionization",
         "radiative_recombination",
         "charge_exchange",
-        "trap",
+        "beam_trap",
         "photon_beam",
-        "single_collision",
+        "electron_impact",
     }
     text = cc.bundled_scenarios()["reference"].read_text(encoding="utf-8")
     written = set(re.findall(r"^#?\s*([a-z_0-9]+)\s*=", text, flags=re.M))
@@ -164,23 +176,50 @@ def test_report_parts_are_consistent(report: cc.Report) -> None:
     q = 16
     evo = report.target_evolution
     # The extraction time defaults to the peak of the target on the grid.
-    t, f = evo.peak(q)
-    assert report.extraction_time_s == pytest.approx(t)
-    # Ions per extraction follow the trap's own formula for a single species.
-    trap = report.source
-    expected = trap.ions_per_extraction(evo.at(t))
-    np.testing.assert_allclose(report.ions["per_charge"], expected, rtol=1e-12)
+    i = int(np.argmax(evo.fractions[:, q]))
+    assert report.extraction_time_s == evo.times_s[i]
+    assert report.extraction_chosen == "peak of the target"
+    assert report.target_peak == (evo.times_s[i], evo.fractions[i, q])
+    # The same trap built through the Python API evolves the same fractions …
+    beam = cc.ElectronBeam(6000.0, 0.1, current_density_a_cm2=300.0)
+    trap = cc.BeamTrap(beam, 0.4, residual_gas_pa={"H2": 1e-8})
+    own = trap.evolve("Ar", report.scenario.times_s)
+    np.testing.assert_allclose(own.fractions, evo.fractions, rtol=1e-12, atol=1e-300)
+    # … and, for a single isotope given alone, the trap's own ions per extraction.
+    np.testing.assert_allclose(report.ions.per_charge, trap.ions_per_extraction(evo.fractions[i]), rtol=1e-12)
+    assert report.ions.isotope_share == 1.0 and report.ions.species_share_of_charge == 1.0
     # Best energy: the whole map's maximum, and never below the value at the scenario's energy
     # (which is on the grid).
-    scan = report.scan
-    assert scan.best_fraction == pytest.approx(scan.fraction.max())
-    assert scan.best_fraction >= f - 1e-12
+    scan = report.best_energy
+    assert scan.best_fraction == scan.fraction.max()
+    assert scan.best_fraction >= report.target_peak[1]
     # Ladder rows are the breeding table of the beam.
-    lad = report.ladder
-    assert lad["charge"][q - 1] == q
+    step = report.ladder.steps[q - 1]
+    assert step.charge == q
     ref = cc.breeding_time_s("Ar", q, energies_ev=6000.0, current_density_a_cm2=300.0)
-    assert lad["breeding_time_s"][q - 1] == pytest.approx(ref, rel=1e-12)
-    assert report.recommended is not None and report.ranking is not None
+    assert step.breeding_time_s == pytest.approx(ref, rel=1e-12)
+    # The recommendation is the best-scored eligible charge state of the ranking.
+    best = next(r for r in report.ranking if r.eligible)
+    assert report.recommended is not None and report.recommended.label == best.ion
+    assert all(r.fraction >= 1e-3 for r in report.ranking if r.eligible)
+
+
+def test_progress_is_reported_from_the_energy_scan() -> None:
+    calls: list[tuple[int, int, str]] = []
+    report = Scenario.from_text(GOOD, "run.toml").run(progress=lambda d, t, w: calls.append((d, t, w)))
+    n = len(report.best_energy.energies_ev)
+    assert calls[0] == (0, n, "energy scan")
+    assert calls[-1] == (n, n, "energy scan")
+    assert len(calls) > 2  # reported between chunks of energies, not only at the ends
+    assert [c[0] for c in calls] == sorted(c[0] for c in calls)
+
+
+def test_an_error_in_the_progress_callback_reaches_the_caller() -> None:
+    def fail(done: int, total: int, what: str) -> None:
+        raise RuntimeError("stop")
+
+    with pytest.raises(RuntimeError, match="stop"):
+        Scenario.from_text(GOOD, "run.toml").run(progress=fail)
 
 
 def test_report_text_has_tables_units_and_cautions(report: cc.Report) -> None:
@@ -229,7 +268,7 @@ def test_report_html_and_figures(report: cc.Report, tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize(
-    ("name", "needs"), [("photon_beam", "PhotonBeam"), ("single_collision", "ElectronImpactSource")]
+    ("name", "needs"), [("photon_beam", "PhotonBeam"), ("electron_impact", "ElectronImpactSource")]
 )
 def test_other_source_kinds_run(name: str, needs: str) -> None:
     if not hasattr(cc, needs):

@@ -76,7 +76,9 @@ def test_huge_times_are_rejected_with_the_limit():
 
 def test_fractions_stay_in_range_up_to_the_limit():
     for energy, current in [(300.0, 0.01), (3000.0, 0.3), (30000.0, 2.0)]:
-        trap = cc.BeamTrap(cc.ElectronBeam(energy, current, radius_m=200e-6), 0.6, residual_gas_pa={"H2": 1e-7})
+        trap = cc.BeamTrap(
+            cc.ElectronBeam(energy, current, radius_m=200e-6), 0.6, residual_gas_pa={"H2": 1e-7}
+        )
         for symbol in ["O", "Ar"]:
             fastest = trap.rates(symbol).sum(axis=1).max()
             times = np.geomspace(1e-6, 0.99e20 / fastest, 40)

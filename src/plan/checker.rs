@@ -1,358 +1,25 @@
-//! Scenario files: one TOML document describing a planned run (the source and its
-//! settings, the species and their amounts, the residual gas, the target isotope and
-//! charge, the separator, the time and energy grids). Reading goes in three passes so every
-//! error can name the file, the line and the field: the TOML syntax, the serde schema
-//! (unknown fields, wrong types), then the values (ranges, elements, isotopes, gases).
-//! The schema is documented field by field in `python/chargecast/scenario.py` and in the
-//! commented example `python/chargecast/scenarios/reference.toml`.
+//! The checker: the values of a scenario (ranges, elements, isotopes, gases, the choice of
+//! one source), after the TOML syntax and the serde schema. Every error names the file,
+//! the line and the field, and says what is allowed.
 
 use std::collections::BTreeMap;
 use std::fmt::Display;
 
-use serde::Deserialize;
-use toml::de::{DeTable, DeValue};
+use toml::de::DeTable;
 
-use super::breeding::breeding_time_s;
-use super::electron_beam::ElectronBeam;
+use super::defaults::*;
+use super::positions::{line_of, Positions};
+use super::schema::*;
+use super::settings::*;
 use crate::atoms::{element, split_species, Element, Isotope};
 use crate::error::{Error, Result};
 use crate::processes::gases::gas;
+use crate::sources::beam_trap::{
+    DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
+};
 
-// ---------------------------------------------------------------- the file as written
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawScenario {
-    title: Option<String>,
-    description: Option<String>,
-    target: Option<RawTarget>,
-    species: Option<Vec<RawSpecies>>,
-    trap: Option<RawTrap>,
-    photon_beam: Option<RawPhotonBeam>,
-    single_collision: Option<RawSingleCollision>,
-    residual_gas_pa: Option<BTreeMap<String, f64>>,
-    time: Option<RawTime>,
-    energy_scan: Option<RawEnergyScan>,
-    separator: Option<RawSeparator>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTarget {
-    isotope: String,
-    charge: i64,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSpecies {
-    name: String,
-    amount: Option<f64>,
-    initial_charge: Option<i64>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTrap {
-    energy_ev: f64,
-    current_a: f64,
-    radius_m: Option<f64>,
-    current_density_a_cm2: Option<f64>,
-    magnetic_field_t: Option<f64>,
-    cathode_radius_m: Option<f64>,
-    cathode_temperature_k: Option<f64>,
-    cathode_field_t: Option<f64>,
-    length_m: f64,
-    ion_temperature_ev: Option<f64>,
-    gas_temperature_k: Option<f64>,
-    compensation: Option<f64>,
-    processes: Option<Vec<String>>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawPhotonBeam {
-    photon_energy_ev: f64,
-    flux_cm2_s: f64,
-    bandwidth_ev: Option<f64>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSingleCollision {
-    energy_ev: f64,
-    energy_spread_ev: Option<f64>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTime {
-    start_s: Option<f64>,
-    stop_s: Option<f64>,
-    points: Option<i64>,
-    extraction_s: Option<f64>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawEnergyScan {
-    start_ev: Option<f64>,
-    stop_ev: Option<f64>,
-    points: Option<i64>,
-    scale: Option<String>,
-}
-
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSeparator {
-    resolving_power: Option<f64>,
-    peak_shape: Option<String>,
-    aq_half_width: Option<f64>,
-    relative_half_width: Option<f64>,
-    window_fwhm: Option<f64>,
-    aq_range: Option<Vec<f64>>,
-    residual_amount: Option<f64>,
-}
-
-// ---------------------------------------------------------------- the checked scenario
-
-/// The target ion: one isotope at one charge state.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Target {
-    /// Isotope label, mass number first ("129Xe").
-    pub isotope: String,
-    pub symbol: String,
-    pub z: u32,
-    pub mass_number: u32,
-    pub charge: u32,
-}
-
-/// One species put into the source.
-#[derive(Clone, Debug, PartialEq)]
-pub struct SpeciesEntry {
-    /// "Xe" for the natural isotopic mix, "129Xe" for one isotope.
-    pub name: String,
-    pub symbol: String,
-    pub z: u32,
-    pub mass_number: Option<u32>,
-    /// Relative amount (any unit; only ratios matter).
-    pub amount: f64,
-    /// Charge state in which it enters the source (0 = neutral atoms).
-    pub initial_charge: u32,
-}
-
-/// Electron-beam trap settings; exactly one of radius, current density or field sizes the beam.
-#[derive(Clone, Debug, PartialEq)]
-pub struct TrapSettings {
-    pub energy_ev: f64,
-    pub current_a: f64,
-    pub radius_m: Option<f64>,
-    pub current_density_a_cm2: Option<f64>,
-    pub magnetic_field_t: Option<f64>,
-    pub cathode_radius_m: Option<f64>,
-    pub cathode_temperature_k: Option<f64>,
-    pub cathode_field_t: f64,
-    pub length_m: f64,
-    pub ion_temperature_ev: f64,
-    pub gas_temperature_k: f64,
-    pub compensation: f64,
-    pub processes: Vec<String>,
-}
-
-/// The source of a scenario.
-#[derive(Clone, Debug, PartialEq)]
-pub enum SourceSettings {
-    Trap(TrapSettings),
-    PhotonBeam {
-        photon_energy_ev: f64,
-        flux_cm2_s: f64,
-        bandwidth_ev: Option<f64>,
-    },
-    SingleCollision {
-        energy_ev: f64,
-        energy_spread_ev: f64,
-    },
-}
-
-impl SourceSettings {
-    /// The table name that holds these settings in the file.
-    pub fn kind(&self) -> &'static str {
-        match self {
-            SourceSettings::Trap(_) => "trap",
-            SourceSettings::PhotonBeam { .. } => "photon_beam",
-            SourceSettings::SingleCollision { .. } => "single_collision",
-        }
-    }
-}
-
-/// Confinement-time grid (log-spaced) and the time of extraction.
-#[derive(Clone, Debug, PartialEq)]
-pub struct TimeGrid {
-    pub start_s: f64,
-    pub stop_s: f64,
-    pub points: usize,
-    /// None: extract when the target charge state peaks.
-    pub extraction_s: Option<f64>,
-}
-
-/// Grid of beam (electron or photon) energies for the best-energy search.
-#[derive(Clone, Debug, PartialEq)]
-pub struct EnergyGrid {
-    pub start_ev: f64,
-    pub stop_ev: f64,
-    pub points: usize,
-    pub log: bool,
-}
-
-/// The mass separator after the source.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Separator {
-    pub resolving_power: f64,
-    pub peak_shape: String,
-    pub aq_half_width: Option<f64>,
-    pub relative_half_width: Option<f64>,
-    pub window_fwhm: f64,
-    pub aq_range: Option<(f64, f64)>,
-    /// Residual-gas ions relative to the species' ions, for the A/q spectrum.
-    pub residual_amount: f64,
-}
-
-/// A checked scenario with every default filled in.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Scenario {
-    pub file: String,
-    pub title: String,
-    pub description: String,
-    pub target: Target,
-    pub species: Vec<SpeciesEntry>,
-    pub source: SourceSettings,
-    /// Residual gases (formula, partial pressure in Pa).
-    pub residual_gas_pa: Vec<(String, f64)>,
-    /// Residual-gas elements (symbol, share of the residual atoms), from the gases'
-    /// composition weighted by partial pressure; shares sum to 1 (empty without gas).
-    pub residual_elements: Vec<(String, f64)>,
-    pub time: TimeGrid,
-    pub energy_scan: EnergyGrid,
-    pub separator: Separator,
-    /// Line (1-based) of every field and table written in the file, by dotted path
-    /// (`trap.energy_ev`, `species[1].name`).
-    pub lines: BTreeMap<String, usize>,
-}
-
-/// Processes a trap can include.
-pub const PROCESSES: [&str; 4] = [
-    "ionization",
-    "radiative_recombination",
-    "charge_exchange",
-    "multiple_ionization",
-];
-/// The processes a trap includes when the scenario does not list them.
-pub const DEFAULT_PROCESSES: [&str; 3] =
-    ["ionization", "radiative_recombination", "charge_exchange"];
-/// Peak shapes of the separator.
-pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
-const MAX_POINTS: i64 = 100_000;
 /// (name, value) pairs in file or alphabetical order.
 type Pairs = Vec<(String, f64)>;
-
-// ---------------------------------------------------------------- errors with positions
-
-/// Where each field sits in the text: dotted path → (line, byte span).
-struct Positions<'a> {
-    file: &'a str,
-    text: &'a str,
-    spans: Vec<(String, std::ops::Range<usize>)>,
-}
-
-impl<'a> Positions<'a> {
-    fn new(file: &'a str, text: &'a str, doc: &DeTable<'_>) -> Self {
-        let mut spans = Vec::new();
-        collect_table(doc, "", &mut spans);
-        Positions { file, text, spans }
-    }
-
-    fn line_of_offset(&self, offset: usize) -> usize {
-        let end = offset.min(self.text.len());
-        self.text
-            .as_bytes()
-            .iter()
-            .take(end)
-            .filter(|b| **b == b'\n')
-            .count()
-            + 1
-    }
-
-    /// Line of a field, or of the nearest enclosing table written in the file.
-    fn line(&self, path: &str) -> Option<usize> {
-        let mut p = path.to_string();
-        loop {
-            if let Some((_, span)) = self.spans.iter().find(|(k, _)| *k == p) {
-                return Some(self.line_of_offset(span.start));
-            }
-            match p.rfind(['.', '[']) {
-                Some(i) => p.truncate(i),
-                None => return None,
-            }
-        }
-    }
-
-    /// The innermost field whose key or value covers a byte span.
-    fn path_at(&self, span: &std::ops::Range<usize>) -> Option<String> {
-        self.spans
-            .iter()
-            .filter(|(_, s)| s.start <= span.start && span.end <= s.end.max(s.start + 1))
-            .min_by_key(|(_, s)| s.end - s.start)
-            .map(|(k, _)| k.clone())
-    }
-
-    fn error(&self, path: &str, message: impl Display) -> Error {
-        let message = match (path.is_empty(), self.line(path)) {
-            (true, _) => message.to_string(),
-            (false, Some(line)) => format!("line {line}, field `{path}`: {message}"),
-            (false, None) => format!("field `{path}`: {message}"),
-        };
-        Error::InvalidScenario {
-            file: self.file.to_string(),
-            message,
-        }
-    }
-}
-
-/// Record the span of every key (from the key to the end of its value) under `prefix`.
-fn collect_table(
-    table: &DeTable<'_>,
-    prefix: &str,
-    out: &mut Vec<(String, std::ops::Range<usize>)>,
-) {
-    for (key, value) in table.iter() {
-        let path = if prefix.is_empty() {
-            key.get_ref().to_string()
-        } else {
-            format!("{prefix}.{}", key.get_ref())
-        };
-        let (k, v) = (key.span(), value.span());
-        // A table header's key comes first; a value written inline follows its key.
-        let span = k.start.min(v.start)..k.end.max(v.end);
-        out.push((path.clone(), span));
-        collect_value(value.get_ref(), &path, out);
-    }
-}
-
-fn collect_value(value: &DeValue<'_>, path: &str, out: &mut Vec<(String, std::ops::Range<usize>)>) {
-    match value {
-        DeValue::Table(t) => collect_table(t, path, out),
-        DeValue::Array(items) => {
-            for (i, item) in items.iter().enumerate() {
-                let p = format!("{path}[{i}]");
-                out.push((p.clone(), item.span()));
-                collect_value(item.get_ref(), &p, out);
-            }
-        }
-        _ => {}
-    }
-}
-
-// ---------------------------------------------------------------- reading
 
 /// Read and check a scenario. `file` names the file in error messages.
 ///
@@ -398,15 +65,8 @@ fn plain_serde_message(message: &str) -> String {
         .replace("expected a sequence", "expected an array [ … ]")
         .replace("expected a map", "expected a table")
         .replace(", expected one of", ": allowed")
-}
-
-fn line_of(text: &str, offset: usize) -> usize {
-    text.as_bytes()
-        .iter()
-        .take(offset.min(text.len()))
-        .filter(|b| **b == b'\n')
-        .count()
-        + 1
+        // Tables with one or two fields: "expected `a`" / "expected `a` or `b`".
+        .replace("`, expected `", "`: allowed `")
 }
 
 struct Checker<'p, 'a> {
@@ -462,26 +122,23 @@ impl Checker<'_, '_> {
     fn check(&self, raw: RawScenario) -> Result<Scenario> {
         let target = self.target(raw.target)?;
         let species = self.species(raw.species, &target)?;
-        let source = self.source(raw.trap, raw.photon_beam, raw.single_collision)?;
+        let source = self.source(raw.beam_trap, raw.photon_beam, raw.electron_impact)?;
         let (residual_gas_pa, residual_elements) = self.residual_gas(raw.residual_gas_pa)?;
+        // The core source checks its own ranges (compensation, temperatures, beam size).
+        self.build(&source, &residual_gas_pa)?;
         let time = self.time(raw.time, &source, &target)?;
         let energy_scan = self.energy_scan(raw.energy_scan, &source, &target)?;
         let separator = self.separator(raw.separator)?;
-        if let SourceSettings::SingleCollision { .. } = source {
+        if let SourceSettings::ElectronImpact(_) = source {
             if let Some(s) = species.iter().find(|s| s.initial_charge != 0) {
                 let i = species.iter().position(|x| x == s).unwrap_or(0);
                 return Err(self.err(
                     &format!("species[{i}].initial_charge"),
-                    "a single-collision source ionizes neutral atoms: allowed 0 only",
+                    "an electron-impact source ionizes neutral atoms in one collision: allowed 0 only",
                 ));
             }
         }
-        let lines = self
-            .pos
-            .spans
-            .iter()
-            .map(|(k, s)| (k.clone(), self.pos.line_of_offset(s.start)))
-            .collect();
+        let lines = self.pos.lines();
         Ok(Scenario {
             file: self.pos.file.to_string(),
             title: raw.title.unwrap_or_default(),
@@ -570,8 +227,11 @@ impl Checker<'_, '_> {
             if let Some(a) = mass {
                 self.wrap(&at("name"), el.isotope(a))?;
             }
-            let amount =
-                self.positive(&at("amount"), s.amount.unwrap_or(1.0), "relative amount")?;
+            let amount = self.positive(
+                &at("amount"),
+                s.amount.unwrap_or(DEFAULT_AMOUNT),
+                "relative amount",
+            )?;
             let q = s.initial_charge.unwrap_or(0);
             if q < 0 || q >= i64::from(el.z()) {
                 return Err(self.err(
@@ -626,9 +286,9 @@ impl Checker<'_, '_> {
 
     fn source(
         &self,
-        trap: Option<RawTrap>,
+        trap: Option<RawBeamTrap>,
         photon: Option<RawPhotonBeam>,
-        single: Option<RawSingleCollision>,
+        single: Option<RawElectronImpact>,
     ) -> Result<SourceSettings> {
         let given = [trap.is_some(), photon.is_some(), single.is_some()]
             .iter()
@@ -638,53 +298,36 @@ impl Checker<'_, '_> {
             let path = if trap.is_some() && photon.is_some() {
                 "photon_beam"
             } else if single.is_some() {
-                "single_collision"
+                "electron_impact"
             } else {
                 ""
             };
             return Err(self.err(
                 path,
                 format!(
-                    "{} source tables given: give exactly one of [trap], [photon_beam] or [single_collision]",
+                    "{} source tables given: give exactly one of [beam_trap], [photon_beam] or [electron_impact]",
                     if given == 0 { "no" } else { "several" }
                 ),
             ));
         }
         if let Some(t) = trap {
-            return self.trap(t).map(SourceSettings::Trap);
+            return self.trap(t).map(SourceSettings::BeamTrap);
         }
         if let Some(p) = photon {
-            return Ok(SourceSettings::PhotonBeam {
-                photon_energy_ev: self.positive(
-                    "photon_beam.photon_energy_ev",
-                    p.photon_energy_ev,
-                    "eV",
-                )?,
-                flux_cm2_s: self.non_negative(
-                    "photon_beam.flux_cm2_s",
-                    p.flux_cm2_s,
-                    "photons cm⁻² s⁻¹",
-                )?,
-                bandwidth_ev: p
-                    .bandwidth_ev
-                    .map(|b| self.non_negative("photon_beam.bandwidth_ev", b, "eV"))
-                    .transpose()?,
-            });
+            return Ok(SourceSettings::PhotonBeam(PhotonBeamSettings {
+                photon_energy_ev: p.photon_energy_ev,
+                flux_cm2_s: p.flux_cm2_s,
+                bandwidth_ev: p.bandwidth_ev,
+            }));
         }
         let s = single.ok_or_else(|| self.err("", "no source table"))?;
-        Ok(SourceSettings::SingleCollision {
-            energy_ev: self.positive("single_collision.energy_ev", s.energy_ev, "eV")?,
-            energy_spread_ev: self.non_negative(
-                "single_collision.energy_spread_ev",
-                s.energy_spread_ev.unwrap_or(0.0),
-                "eV",
-            )?,
-        })
+        Ok(SourceSettings::ElectronImpact(ElectronImpactSettings {
+            energy_ev: s.energy_ev,
+            energy_spread_ev: s.energy_spread_ev.unwrap_or(0.0),
+        }))
     }
 
-    fn trap(&self, t: RawTrap) -> Result<TrapSettings> {
-        let energy_ev = self.positive("trap.energy_ev", t.energy_ev, "eV")?;
-        let current_a = self.positive("trap.current_a", t.current_a, "A")?;
+    fn trap(&self, t: RawBeamTrap) -> Result<BeamTrapSettings> {
         let sizes = [
             ("radius_m", t.radius_m),
             ("current_density_a_cm2", t.current_density_a_cm2),
@@ -698,7 +341,7 @@ impl Checker<'_, '_> {
         if given.len() != 1 {
             let path = given
                 .get(1)
-                .map_or("trap".to_string(), |k| format!("trap.{k}"));
+                .map_or("beam_trap".to_string(), |k| format!("beam_trap.{k}"));
             return Err(self.err(
                 &path,
                 format!(
@@ -706,11 +349,6 @@ impl Checker<'_, '_> {
                     if given.is_empty() { "missing".to_string() } else { format!("given twice ({})", given.join(", ")) }
                 ),
             ));
-        }
-        for (k, v) in sizes {
-            if let Some(v) = v {
-                self.positive(&format!("trap.{k}"), v, "")?;
-            }
         }
         let cathode = [t.cathode_radius_m, t.cathode_temperature_k];
         if t.magnetic_field_t.is_none()
@@ -724,7 +362,7 @@ impl Checker<'_, '_> {
                 "cathode_field_t"
             };
             return Err(self.err(
-                &format!("trap.{k}"),
+                &format!("beam_trap.{k}"),
                 "cathode settings size the beam with the magnetic field: give magnetic_field_t too (and no radius_m or current_density_a_cm2)",
             ));
         }
@@ -735,47 +373,18 @@ impl Checker<'_, '_> {
                 "cathode_temperature_k"
             };
             return Err(self.err(
-                &format!("trap.{k}"),
+                &format!("beam_trap.{k}"),
                 "give both cathode_radius_m and cathode_temperature_k (for the Herrmann radius) or neither (Brillouin radius)",
             ));
         }
         let cathode_field_t = t.cathode_field_t.unwrap_or(0.0);
-        let beam = match (t.radius_m, t.current_density_a_cm2, t.magnetic_field_t) {
-            (Some(r), _, _) => ElectronBeam::with_radius(energy_ev, current_a, r),
-            (_, Some(j), _) => ElectronBeam::with_current_density(energy_ev, current_a, j),
-            (_, _, Some(b)) => match (t.cathode_radius_m, t.cathode_temperature_k) {
-                (Some(rc), Some(tc)) => {
-                    ElectronBeam::with_herrmann(energy_ev, current_a, b, rc, tc, cathode_field_t)
-                }
-                _ => ElectronBeam::with_magnetic_field(energy_ev, current_a, b),
-            },
-            _ => Err(Error::invalid(
-                "beam size",
-                "none",
-                "give one of radius_m, current_density_a_cm2, magnetic_field_t",
-            )),
-        };
-        beam.map_err(|e| {
-            let path = match &e {
-                Error::InvalidParameter { name, .. } => format!("trap.{name}"),
-                _ => "trap".to_string(),
-            };
-            self.err(&path, e)
-        })?;
-        let compensation = t.compensation.unwrap_or(0.5);
-        if !(compensation.is_finite() && (0.0..=1.0).contains(&compensation)) {
-            return Err(self.err(
-                "trap.compensation",
-                format!("{compensation} is not allowed: must lie in 0…1"),
-            ));
-        }
         let processes = match t.processes {
             None => DEFAULT_PROCESSES.iter().map(|p| p.to_string()).collect(),
             Some(list) => {
                 for (i, p) in list.iter().enumerate() {
                     if !PROCESSES.contains(&p.as_str()) {
                         return Err(self.err(
-                            &format!("trap.processes[{i}]"),
+                            &format!("beam_trap.processes[{i}]"),
                             format!(
                                 "unknown process {p:?}: allowed \"{}\"",
                                 PROCESSES.join("\", \"")
@@ -786,28 +395,35 @@ impl Checker<'_, '_> {
                 list
             }
         };
-        Ok(TrapSettings {
-            energy_ev,
-            current_a,
+        Ok(BeamTrapSettings {
+            energy_ev: t.energy_ev,
+            current_a: t.current_a,
             radius_m: t.radius_m,
             current_density_a_cm2: t.current_density_a_cm2,
             magnetic_field_t: t.magnetic_field_t,
             cathode_radius_m: t.cathode_radius_m,
             cathode_temperature_k: t.cathode_temperature_k,
             cathode_field_t,
-            length_m: self.positive("trap.length_m", t.length_m, "m")?,
-            ion_temperature_ev: self.positive(
-                "trap.ion_temperature_ev",
-                t.ion_temperature_ev.unwrap_or(50.0),
-                "eV",
-            )?,
-            gas_temperature_k: self.positive(
-                "trap.gas_temperature_k",
-                t.gas_temperature_k.unwrap_or(300.0),
-                "K",
-            )?,
-            compensation,
+            length_m: t.length_m,
+            ion_temperature_ev: t.ion_temperature_ev.unwrap_or(DEFAULT_ION_TEMPERATURE_EV),
+            gas_temperature_k: t.gas_temperature_k.unwrap_or(DEFAULT_GAS_TEMPERATURE_K),
+            compensation: t.compensation.unwrap_or(DEFAULT_COMPENSATION),
             processes,
+        })
+    }
+
+    /// Build the core source: its constructors check the ranges of its settings, and an
+    /// error names the field it came from.
+    fn build(&self, source: &SourceSettings, residual_gas_pa: &[(String, f64)]) -> Result<()> {
+        source.build(residual_gas_pa).map(|_| ()).map_err(|e| {
+            let kind = source.kind();
+            let path = match &e {
+                Error::InvalidParameter { name, .. } if !name.contains(' ') => {
+                    format!("{kind}.{name}")
+                }
+                _ => kind.to_string(),
+            };
+            self.err(&path, e)
         })
     }
 
@@ -842,19 +458,14 @@ impl Checker<'_, '_> {
         source: &SourceSettings,
         target: &Target,
     ) -> Result<TimeGrid> {
-        let raw = raw.unwrap_or(RawTime {
-            start_s: None,
-            stop_s: None,
-            points: None,
-            extraction_s: None,
-        });
+        let raw = raw.unwrap_or_default();
         let stop_s = match raw.stop_s {
             Some(s) => self.positive("time.stop_s", s, "s")?,
             None => default_stop_s(source, target),
         };
         let start_s = match raw.start_s {
             Some(s) => self.positive("time.start_s", s, "s")?,
-            None => stop_s * 1e-5,
+            None => stop_s * DEFAULT_START_OVER_STOP,
         };
         if start_s >= stop_s {
             return Err(self.err(
@@ -862,7 +473,7 @@ impl Checker<'_, '_> {
                 format!("{start_s} s is not before stop_s = {stop_s} s: start_s must be smaller"),
             ));
         }
-        let points = self.points("time.points", raw.points.unwrap_or(300))?;
+        let points = self.points("time.points", raw.points.unwrap_or(DEFAULT_TIME_POINTS))?;
         let extraction_s = match raw.extraction_s {
             None => None,
             Some(t) if t.is_finite() && (start_s..=stop_s).contains(&t) => Some(t),
@@ -889,12 +500,7 @@ impl Checker<'_, '_> {
         source: &SourceSettings,
         target: &Target,
     ) -> Result<EnergyGrid> {
-        let raw = raw.unwrap_or(RawEnergyScan {
-            start_ev: None,
-            stop_ev: None,
-            points: None,
-            scale: None,
-        });
+        let raw = raw.unwrap_or_default();
         let (lo, hi) = default_energy_range(source, target);
         let start_ev = match raw.start_ev {
             Some(e) => self.positive("energy_scan.start_ev", e, "eV")?,
@@ -912,7 +518,10 @@ impl Checker<'_, '_> {
                 ),
             ));
         }
-        let points = self.points("energy_scan.points", raw.points.unwrap_or(40))?;
+        let points = self.points(
+            "energy_scan.points",
+            raw.points.unwrap_or(DEFAULT_ENERGY_POINTS),
+        )?;
         let log = match raw.scale.as_deref() {
             None | Some("log") => true,
             Some("linear") => false,
@@ -932,16 +541,8 @@ impl Checker<'_, '_> {
     }
 
     fn separator(&self, raw: Option<RawSeparator>) -> Result<Separator> {
-        let raw = raw.unwrap_or(RawSeparator {
-            resolving_power: None,
-            peak_shape: None,
-            aq_half_width: None,
-            relative_half_width: None,
-            window_fwhm: None,
-            aq_range: None,
-            residual_amount: None,
-        });
-        let shape = raw.peak_shape.unwrap_or_else(|| "gaussian".into());
+        let raw = raw.unwrap_or_default();
+        let shape = raw.peak_shape.unwrap_or_else(|| DEFAULT_PEAK_SHAPE.into());
         if !PEAK_SHAPES.contains(&shape.as_str()) {
             return Err(self.err(
                 "separator.peak_shape",
@@ -976,7 +577,7 @@ impl Checker<'_, '_> {
         Ok(Separator {
             resolving_power: self.positive(
                 "separator.resolving_power",
-                raw.resolving_power.unwrap_or(200.0),
+                raw.resolving_power.unwrap_or(DEFAULT_RESOLVING_POWER),
                 "(m/q)/FWHM",
             )?,
             peak_shape: shape,
@@ -990,61 +591,16 @@ impl Checker<'_, '_> {
                 .transpose()?,
             window_fwhm: self.positive(
                 "separator.window_fwhm",
-                raw.window_fwhm.unwrap_or(1.0),
+                raw.window_fwhm.unwrap_or(DEFAULT_WINDOW_FWHM),
                 "FWHM",
             )?,
             aq_range,
             residual_amount: self.non_negative(
                 "separator.residual_amount",
-                raw.residual_amount.unwrap_or(0.05),
+                raw.residual_amount.unwrap_or(DEFAULT_RESIDUAL_AMOUNT),
                 "relative amount",
             )?,
         })
-    }
-}
-
-/// Without a [time] table: twenty times the stepwise breeding time of the target in a
-/// trap (rounded up to a power of ten, 1 ms … 1000 s), else one second.
-fn default_stop_s(source: &SourceSettings, target: &Target) -> f64 {
-    let SourceSettings::Trap(t) = source else {
-        return 1.0;
-    };
-    let j = match (t.radius_m, t.current_density_a_cm2) {
-        (_, Some(j)) => j,
-        (Some(r), None) => super::electron_beam::current_density_a_cm2(t.current_a, r),
-        _ => {
-            let r = t.magnetic_field_t.map_or(0.0, |b| {
-                super::electron_beam::brillouin_radius_m(t.current_a, t.energy_ev, b)
-            });
-            super::electron_beam::current_density_a_cm2(t.current_a, r)
-        }
-    };
-    let tau = element(&target.symbol)
-        .and_then(|el| breeding_time_s(el, i64::from(target.charge), t.energy_ev, j, None))
-        .unwrap_or(f64::INFINITY);
-    if tau.is_finite() && tau > 0.0 {
-        10f64.powf((20.0 * tau).log10().ceil()).clamp(1e-3, 1e3)
-    } else {
-        1.0
-    }
-}
-
-/// Without an [energy_scan] table: from 0.8 to 6 times the energy that opens the target
-/// charge state (the last step's ionization energy for stepwise sources, the sum of
-/// ionization energies for a single collision).
-fn default_energy_range(source: &SourceSettings, target: &Target) -> (f64, f64) {
-    let ies = element(&target.symbol)
-        .map(Element::ionization_energies_ev)
-        .unwrap_or(&[]);
-    let q = target.charge as usize;
-    let base = match source {
-        SourceSettings::SingleCollision { .. } => ies.iter().take(q).sum::<f64>(),
-        _ => ies.get(q.saturating_sub(1)).copied().unwrap_or(0.0),
-    };
-    if base.is_finite() && base > 0.0 {
-        (0.8 * base, 6.0 * base)
-    } else {
-        (10.0, 1e5)
     }
 }
 
@@ -1062,7 +618,7 @@ title = "test"
 isotope = "40Ar"
 charge = 16
 
-[trap]
+[beam_trap]
 energy_ev = 5000.0
 current_a = 0.1
 radius_m = 50e-6
@@ -1089,13 +645,13 @@ CO = 1e-8
         assert_eq!(s.target.isotope, "40Ar");
         assert_eq!(s.species.len(), 1);
         assert_eq!(s.species[0].name, "40Ar");
-        assert_eq!(s.source.kind(), "trap");
+        assert_eq!(s.source.kind(), "beam_trap");
         assert_eq!(s.separator.peak_shape, "gaussian");
         assert!(s.time.start_s < s.time.stop_s);
         // H2 brings two H per molecule, CO one C and one O at equal pressure: 2:1:1.
         let shares: BTreeMap<_, _> = s.residual_elements.iter().cloned().collect();
         assert!((shares["H"] - 0.5).abs() < 1e-12 && (shares["C"] - 0.25).abs() < 1e-12);
-        assert_eq!(s.lines["trap.energy_ev"], 8);
+        assert_eq!(s.lines["beam_trap.energy_ev"], 8);
         assert_eq!(s.lines["target"], 3);
     }
 
@@ -1103,7 +659,7 @@ CO = 1e-8
     fn unknown_field_names_line_field_and_allowed_fields() {
         let m = message(&GOOD.replace("energy_ev = 5000.0", "energy_kev = 5.0"));
         assert!(
-            m.contains("line 8") && m.contains("trap.energy_kev") && m.contains("energy_ev"),
+            m.contains("line 8") && m.contains("beam_trap.energy_kev") && m.contains("energy_ev"),
             "{m}"
         );
     }
@@ -1149,9 +705,9 @@ CO = 1e-8
 
     #[test]
     fn missing_source_and_target_are_explained() {
-        assert!(message("[target]\nisotope = \"40Ar\"\ncharge = 3\n").contains("[trap]"));
+        assert!(message("[target]\nisotope = \"40Ar\"\ncharge = 3\n").contains("[beam_trap]"));
         assert!(message(
-            "[trap]\nenergy_ev = 1.0\ncurrent_a = 1.0\nradius_m = 1e-4\nlength_m = 1.0\n"
+            "[beam_trap]\nenergy_ev = 1.0\ncurrent_a = 1.0\nradius_m = 1e-4\nlength_m = 1.0\n"
         )
         .contains("[target]"));
     }

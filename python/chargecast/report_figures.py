@@ -1,0 +1,362 @@
+"""Figures of a :class:`chargecast.Report` (matplotlib): evolution, single-collision
+yields, breeding ladder, energy × time map and the A/q neighbourhood.
+
+The figures reuse the plots of the result classes (Evolution, EnergyScan, LineList,
+AppearanceCurves); each is built from the report's arrays by ONE small function below, so
+only those change when the bindings do. Nothing here computes physics.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from chargecast._util import PALETTE, require_pyplot
+from chargecast.report_text import source_line
+
+__all__ = [
+    "plot_energy_map",
+    "plot_evolution",
+    "plot_ladder",
+    "plot_spectrum",
+    "plot_yields",
+    "save_plots",
+]
+
+
+# ---------------------------------------------------------------- result classes from the report
+
+
+def _evolution(report: Any) -> Any:
+    """The target species' evolution as an :class:`chargecast.Evolution` (None without one)."""
+    e = report.target_evolution
+    return None if e is None else report.evolution(e.name)
+
+
+def _energy_scan(report: Any) -> Any:
+    """The energy × time map as an EnergyScan (PhotonEnergyScan for a photon beam)."""
+    return report.energy_scan()
+
+
+def _appearance_curves(report: Any) -> Any:
+    """The single-collision energy scan as :class:`chargecast.AppearanceCurves`."""
+    return report.energy_scan()
+
+
+def _line_list(report: Any) -> Any:
+    """The report's A/q lines as a :class:`chargecast.LineList`."""
+    from chargecast.spectrum import LineList
+
+    c = report.aq_lines
+    names = ("label", "isotope", "z", "mass_number", "charge", "mass_u", "m_over_q", "a_over_q", "intensity")
+    return LineList._from_core({**{n: getattr(c, n) for n in names}, "residual": c.residual})
+
+
+# ---------------------------------------------------------------- figures
+
+
+def _axes(ax: Any) -> Any:
+    if ax is None:
+        _, ax = require_pyplot().subplots(figsize=(8, 4.5))
+    return ax
+
+
+def plot_evolution(report: Any, ax: Any | None = None) -> Any:
+    """Charge states near the target over time, with the extraction time marked.
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    evo = _evolution(report)
+    if evo is None:
+        return plot_yields(report, ax)
+    ax = _axes(ax)
+    q = int(report.scenario.target.charge)
+    # Six states around the target: enough context, and the palette's first six colours
+    # (its yellow, hard to see as a line on white, is the seventh).
+    near = [c for c in range(max(0, q - 3), min(evo.z, q + 2) + 1) if evo.fractions[:, c].max() > 1e-3]
+    evo.plot(ax=ax, charges=near)
+    for line in ax.get_lines():
+        if line.get_label() == f"{q}+":
+            line.set_linewidth(2.6)
+    t_ex = report.extraction_time_s
+    ax.axvline(t_ex, color="black", lw=1, ls=":")
+    ax.annotate(
+        f"extraction {t_ex:.3g} s",
+        (t_ex, 1.0),
+        textcoords="offset points",
+        xytext=(-4, -2),
+        ha="right",
+        va="top",
+        fontsize=8,
+    )
+    ax.set_title(f"{evo.element} charge states near the target {q}+ ({source_line(report)})", fontsize=10)
+    if report.scenario.source.kind == "photon_beam":
+        ax.set_xlabel("exposure time (s)")
+    return ax
+
+
+def plot_yields(report: Any, ax: Any | None = None) -> Any:
+    """Single-collision charge yields of every species (grouped bars, log scale).
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    ax = _axes(ax)
+    q = int(report.scenario.target.charge)
+    yields = report.fractions_at_extraction
+    names = report.species_names
+    top = max(int(np.flatnonzero(y > 0).max()) if (y > 0).any() else 1 for y in yields.values())
+    qs = np.arange(1, top + 1)
+    width = 0.8 / max(1, len(names))
+    floor = min(float(y[y > 0].min()) for y in yields.values() if (y > 0).any())
+    for k, name in enumerate(names):
+        y = yields[name][1 : top + 1]
+        ax.bar(
+            qs + (k - (len(names) - 1) / 2) * width,
+            np.where(y > 0, y, np.nan),
+            width,
+            color=PALETTE[k % len(PALETTE)],
+            label=name,
+        )
+    ax.set_yscale("log")
+    ax.set_ylim(floor / 3, 1.5)
+    ax.set_xticks(qs)
+    ax.set_xticklabels([f"{c}+" + (" (target)" if c == q else "") for c in qs])
+    ax.set_xlabel("charge state")
+    ax.set_ylabel("fraction of the ions made")
+    ax.legend(fontsize=8, frameon=False, title="species")
+    ax.set_title(
+        f"charge yields of one {report.scenario.source.energy_ev:g} eV electron collision", fontsize=10
+    )
+    return ax
+
+
+def plot_ladder(report: Any, ax: Any | None = None) -> Any:
+    """Stepwise breeding: σ of each step (Lotz, or photoionization for a photon beam) and the
+    time to reach each charge state (the σ panel alone for a single-collision source).
+
+    Returns
+    -------
+    matplotlib Axes (the breeding-time axis)
+    """
+    plt = require_pyplot()
+    lad = report.ladder
+    q = int(report.scenario.target.charge)
+    charge = np.array([st.charge for st in lad.steps], dtype=float)
+    sigma = np.array([st.cross_section_cm2 for st in lad.steps], dtype=float)
+    t = np.array(
+        [np.nan if st.breeding_time_s is None else st.breeding_time_s for st in lad.steps], dtype=float
+    )
+    kind = report.scenario.source.kind
+    times_known = bool(np.isfinite(t).any())
+    if ax is None and times_known:
+        fig, (ax_s, ax) = plt.subplots(2, 1, figsize=(8, 5.5), sharex=True, height_ratios=[1, 1.3])
+    elif ax is None:
+        fig, ax_s = plt.subplots(figsize=(8, 3.5))
+        ax = None
+    else:
+        fig, ax_s = ax.figure, None
+    if ax_s is not None:
+        ok = sigma > 0
+        ax_s.semilogy(charge[ok], sigma[ok], "o-", color=PALETTE[0], ms=3, lw=1)
+        what = "photoionization σ" if kind == "photon_beam" else "Lotz σ"
+        ax_s.set_ylabel(f"{what} of step\n(q−1)+ → q+ (cm²)")
+        if ax is None:
+            ax_s.set_xlabel("charge state q")
+        j, e = lad.current_density_a_cm2, lad.energy_ev
+        sym = report.scenario.target.symbol
+        title = {
+            "beam_trap": f"stepwise breeding of {sym} at {e:.5g} eV, {j or 0:.4g} A/cm² (ionization only)",
+            "photon_beam": f"stepwise photoionization of {sym} at {e:.5g} eV (one charge per photon)",
+            "electron_impact": f"ionization steps of {sym}: Lotz cross sections at {e:.5g} eV",
+        }[kind]
+        ax_s.set_title(title, fontsize=10)
+        from matplotlib.ticker import MaxNLocator
+
+        ax_s.xaxis.set_major_locator(MaxNLocator(integer=True))
+        ax_s.grid(True, which="major", alpha=0.3)
+        ax_s.axvline(q, color=PALETTE[3], lw=1, ls="--", label=f"target {q}+")
+    if ax is None:
+        ax_s.legend(fontsize=8, frameon=False)
+        fig.tight_layout()
+        return ax_s
+    ok = np.isfinite(t) & (t > 0)
+    if ok.any():
+        ax.semilogy(
+            charge[ok], t[ok], "o-", color=PALETTE[0], ms=3, lw=1, label="time to reach q+ from the neutral"
+        )
+    blocked = np.isinf(t)
+    if blocked.any():
+        ax.plot(
+            charge[blocked],
+            np.full(int(blocked.sum()), np.nanmax(t[ok]) if ok.any() else 1.0),
+            "x",
+            color=PALETTE[3],
+            ms=8,
+            label="not reached: beam energy below the step's threshold",
+        )
+    ax.axvline(q, color=PALETTE[3], lw=1, ls="--", label=f"target {q}+")
+    t_ex = report.extraction_time_s
+    if t_ex is not None and math.isfinite(t_ex):
+        ax.axhline(t_ex, color="black", lw=1, ls=":", label=f"extraction time {t_ex:.3g} s")
+    ax.set_xlabel("charge state q")
+    ax.set_ylabel("stepwise breeding time (s)")
+    ax.grid(True, which="major", alpha=0.3)
+    ax.legend(fontsize=8, frameon=True, framealpha=0.9, loc="lower right")
+    fig.tight_layout()
+    return ax
+
+
+def plot_energy_map(report: Any, ax: Any | None = None) -> Any:
+    """Target fraction over beam energy and time, the scenario's energy marked (for a
+    single collision: the appearance curves, the target bold and its best energy starred).
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    src = report.scenario.source
+    sc = report.best_energy
+    if sc.kind == "appearance":
+        return _plot_appearance(report, ax)
+    ax = _energy_scan(report).plot(ax=ax)
+    if src.kind == "photon_beam":
+        ax.set_xlabel("exposure time (s)")
+    energy = src.energy_ev if src.energy_ev is not None else src.photon_energy_ev
+    ax.axhline(energy, color="white", lw=1, ls="--")
+    ax.annotate(
+        f"scenario: {energy:.4g} eV",
+        (ax.get_xlim()[0], energy),
+        textcoords="offset points",
+        xytext=(4, 3),
+        color="white",
+        fontsize=8,
+    )
+    return ax
+
+
+def _plot_appearance(report: Any, ax: Any | None) -> Any:
+    sc = report.best_energy
+    q = int(report.scenario.target.charge)
+    ax = _appearance_curves(report).plot(ax=ax)
+    for line in ax.get_lines():
+        if line.get_label() == f"{q}+":
+            line.set_linewidth(2.6)
+    if sc.best_cross_section_cm2 > 0:
+        ax.plot(
+            [sc.best_energy_ev],
+            [sc.best_cross_section_cm2],
+            "*",
+            color=PALETTE[1],
+            markersize=13,
+            markeredgecolor="black",
+            linestyle="none",
+            label=f"best for {q}+: {sc.best_energy_ev:.4g} eV",
+        )
+    own = sc.own_energy_ev
+    ax.axvline(own, color="black", lw=1, ls=":", label=f"scenario: {own:.4g} eV")
+    ax.legend(fontsize=7, loc="center left", bbox_to_anchor=(1.0, 0.5), frameon=False)
+    # Plain numbers on an energy axis spanning a decade or two read better than powers of ten.
+    from matplotlib.ticker import FuncFormatter
+
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+    ax.xaxis.set_minor_formatter(FuncFormatter(lambda v, _: f"{v:g}" if str(f"{v:g}")[0] in "25" else ""))
+    return ax
+
+
+def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
+    """The A/q neighbourhood of the target at the separator's resolving power, the
+    recommended charge state marked.
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    lines = _line_list(report)
+    o = report.neighbourhood
+    s = report.scenario
+    r = float(s.separator.resolving_power)
+    centre = o.m_over_q
+    lo, hi = centre * (1 - 4.5 / r), centre * (1 + 4.5 / r)
+    rec = report.recommended
+    if rec is not None:
+        lo, hi = min(lo, rec.m_over_q * (1 - 3 / r)), max(hi, rec.m_over_q * (1 + 3 / r))
+    ax = lines.plot(
+        ax=ax,
+        resolving_power=r,
+        target=(s.target.isotope, int(s.target.charge)),
+        shape=s.separator.peak_shape,
+        m_over_q_range=(lo, hi),
+    )
+    # Labels of lines too weak to see only collide at the baseline; the table lists them.
+    shown = (lines.m_over_q >= lo) & (lines.m_over_q <= hi)
+    ymax = max((float(v) for v in lines.intensity[shown]), default=0.0)
+    for text in list(ax.texts):
+        xy = getattr(text, "xy", None)
+        if xy is not None and xy[1] < 0.03 * ymax:
+            text.remove()
+    ax.axvspan(*o.window, color=PALETTE[3], alpha=0.12, lw=0, label="target acceptance window")
+    if rec is not None and rec.label != o.target:
+        i = int(np.flatnonzero(lines.label == rec.label)[0])
+        height = float(lines.intensity[i])
+        ax.vlines([rec.m_over_q], 0.0, height, color=PALETTE[4], lw=2.2, label="recommended")
+        ax.annotate(
+            f"recommended {rec.label}",
+            (rec.m_over_q, height),
+            textcoords="offset points",
+            xytext=(0, 16),
+            ha="center",
+            fontsize=8,
+            color=PALETTE[4],
+            arrowprops={"arrowstyle": "->", "color": PALETTE[4]},
+        )
+    top = max((float(np.max(ln.get_ydata())) for ln in ax.get_lines() if len(ln.get_ydata())), default=ymax)
+    ax.set_ylim(0.0, 1.12 * max(top, ymax, 1e-300))
+    ax.legend(fontsize=8, frameon=False, loc="upper left", bbox_to_anchor=(1.0, 1.0))
+    ax.set_title(f"A/q neighbourhood of {o.target} at R = {r:g}", fontsize=10)
+    return ax
+
+
+def save_plots(report: Any, directory: str | os.PathLike, dpi: int = 120) -> list[Path]:
+    """Write the report's figures as PNG files.
+
+    Parameters
+    ----------
+    report : chargecast.Report
+    directory : str or path-like
+        Created if missing.
+    dpi : int
+        Resolution.
+
+    Returns
+    -------
+    list of pathlib.Path
+        ``evolution.png``, ``breeding_ladder.png``, ``energy_time_map.png``, ``aq_spectrum.png``.
+    """
+    plt = require_pyplot()
+    out = Path(directory)
+    out.mkdir(parents=True, exist_ok=True)
+    written = []
+    for name, plot in (
+        ("evolution", plot_evolution),
+        ("breeding_ladder", plot_ladder),
+        ("energy_time_map", plot_energy_map),
+        ("aq_spectrum", plot_spectrum),
+    ):
+        if name == "breeding_ladder":
+            ax = plot(report)
+        else:
+            _, ax0 = plt.subplots(figsize=(8, 4.5))
+            ax = plot(report, ax=ax0)
+        path = out / f"{name}.png"
+        ax.figure.savefig(path, dpi=dpi, bbox_inches="tight")
+        plt.close(ax.figure)
+        written.append(path)
+    return written

@@ -1,0 +1,223 @@
+"""The JSON view of a :class:`chargecast.Report`: the same content as the text, as data.
+
+Non-finite numbers become ``null``. No model decision is made here: rows and thresholds
+come from the report.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from typing import Any
+
+import numpy as np
+
+__all__ = ["scenario_dict", "to_dict", "to_json"]
+
+# The fields of each source's settings, in the order the schema lists them.
+_SOURCE_FIELDS = {
+    "beam_trap": (
+        "energy_ev",
+        "current_a",
+        "radius_m",
+        "current_density_a_cm2",
+        "magnetic_field_t",
+        "cathode_radius_m",
+        "cathode_temperature_k",
+        "cathode_field_t",
+        "length_m",
+        "ion_temperature_ev",
+        "gas_temperature_k",
+        "compensation",
+        "processes",
+    ),
+    "photon_beam": ("photon_energy_ev", "flux_cm2_s", "bandwidth_ev"),
+    "electron_impact": ("energy_ev", "energy_spread_ev"),
+}
+
+
+def _fields(obj: Any, names: tuple[str, ...]) -> dict[str, Any]:
+    return {n: getattr(obj, n) for n in names}
+
+
+def scenario_dict(scenario: Any) -> dict[str, Any]:
+    """The checked scenario as JSON-compatible data (every default filled in)."""
+    s = scenario
+    src = s.source
+    return {
+        "file": s.file,
+        "title": s.title,
+        "description": s.description,
+        "target": _fields(s.target, ("isotope", "symbol", "z", "mass_number", "charge")),
+        "species": [
+            _fields(sp, ("name", "symbol", "z", "mass_number", "amount", "initial_charge"))
+            for sp in s.species
+        ],
+        "source": {"kind": src.kind, **_fields(src, _SOURCE_FIELDS[src.kind])},
+        "residual_gas_pa": s.residual_gas_pa,
+        "residual_elements": s.residual_elements,
+        "time": _fields(s.time, ("start_s", "stop_s", "points", "extraction_s")),
+        "energy_scan": _fields(s.energy_scan, ("start_ev", "stop_ev", "points", "scale")),
+        "separator": _fields(
+            s.separator,
+            (
+                "resolving_power",
+                "peak_shape",
+                "aq_half_width",
+                "relative_half_width",
+                "window_fwhm",
+                "aq_range",
+                "residual_amount",
+            ),
+        ),
+    }
+
+
+def to_dict(report: Any) -> dict[str, Any]:
+    """The report as JSON-compatible data.
+
+    Parameters
+    ----------
+    report : chargecast.Report
+
+    Returns
+    -------
+    dict
+    """
+    r = report
+    s = r.scenario
+    steps = r.ladder.steps
+    ladder = {
+        "charge": [st.charge for st in steps],
+        "ionization_energy_ev": [st.ionization_energy_ev for st in steps],
+        "threshold_ev": [st.threshold_ev for st in steps],
+        "subshell": [st.subshell or "" for st in steps],
+        "cross_section_cm2": [st.cross_section_cm2 for st in steps],
+        "breeding_time_s": [st.breeding_time_s for st in steps],
+        "j_tau_c_cm2": [st.j_tau_c_cm2 for st in steps],
+        "energy_ev": [r.ladder.energy_ev],
+        "current_density_a_cm2": [r.ladder.current_density_a_cm2],
+        "cross_section_kind": [r.ladder.cross_section_kind],
+    }
+    rec = r.recommended
+    out: dict[str, Any] = {
+        "scenario": scenario_dict(s),
+        "target": s.target.label,
+        "breeding_ladder": ladder,
+        "evolution": None,
+        "best_energy": None,
+        "ions_per_extraction": None,
+        "aq_neighbourhood": None,
+        "charge_state_ranking": None,
+        "recommended_charge_state": None
+        if rec is None
+        else _fields(
+            rec,
+            ("charge", "label", "a_over_q", "m_over_q", "fraction", "purity", "score", "main_contaminant"),
+        ),
+        "notes": r.notes,
+        "cautions": r.cautions,
+    }
+    evo = r.target_evolution
+    if evo is not None:
+        out["evolution"] = {
+            "element": evo.element,
+            "times_s": [s.time.start_s, s.time.stop_s, s.time.points],
+            "extraction_time_s": r.extraction_time_s,
+            "extraction_time_from": r.extraction_chosen,
+            "mean_charge_at_extraction": r.mean_charge_at_extraction,
+            "charge_states": [
+                _fields(
+                    x, ("charge", "peak_fraction", "peak_time_s", "final_fraction", "fraction_at_extraction")
+                )
+                for x in r.evolution_summary
+            ],
+        }
+    else:
+        out["evolution"] = {"electron_impact_yields": dict(r.fractions_at_extraction)}
+    sc = r.best_energy
+    e = sc.energies_ev
+    out["best_energy"] = {
+        "charge": s.target.charge,
+        "energies_ev": [float(e[0]), float(e[-1]), len(e)],
+        "best_energy_ev": sc.best_energy_ev,
+        "best_time_s": sc.best_time_s,
+        "best_fraction": sc.best_fraction,
+    }
+    if sc.kind == "appearance":
+        out["best_energy"]["best_cross_section_cm2"] = sc.best_cross_section_cm2
+    if r.photon_thresholds is not None:
+        out["one_photon"] = [
+            {
+                "charge": th.charge,
+                "threshold_ev": th.threshold_ev,
+                "yield_per_photon": th.yield_per_photon,
+                "via": [_fields(rt, ("subshell", "binding_ev", "probability")) for rt in th.routes],
+            }
+            for th in r.photon_thresholds
+        ]
+    if r.ions is not None:
+        d = r.ions
+        out["ions_per_extraction"] = {
+            **_fields(
+                d,
+                ("time_s", "electrons_in_trap", "compensation", "species", "species_share_of_charge"),
+            ),
+            "isotope_share": d.isotope_share,
+            "per_charge": {f"{q}+": float(n) for q, n in enumerate(d.per_charge) if n >= 0.5},
+            "target": d.target,
+            "all_charges": d.all_charges,
+        }
+    o = r.neighbourhood
+    out["aq_neighbourhood"] = {
+        "target": o.target,
+        "m_over_q": o.m_over_q,
+        "a_over_q": o.a_over_q,
+        "resolving_power": o.resolving_power,
+        "peak_shape": o.peak_shape,
+        "fwhm": o.fwhm,
+        "window": list(o.window),
+        "purity": o.purity,
+        "interferers": [
+            _fields(
+                i,
+                (
+                    "ion",
+                    "m_over_q",
+                    "a_over_q",
+                    "intensity",
+                    "residual_gas",
+                    "delta_m_over_q",
+                    "separation_fwhm",
+                    "contamination",
+                    "resolving_power_needed",
+                ),
+            )
+            for i in o.interferers
+        ],
+    }
+    out["charge_state_ranking"] = [
+        _fields(rk, ("charge", "ion", "a_over_q", "fraction", "purity", "score", "main_contaminant"))
+        for rk in r.ranking
+    ]
+    return _jsonable(out)
+
+
+def to_json(report: Any, indent: int | None = 2) -> str:
+    """The report as JSON text (same content as the text view)."""
+    return json.dumps(to_dict(report), indent=indent, allow_nan=False)
+
+
+def _jsonable(x: Any) -> Any:
+    if isinstance(x, dict):
+        return {str(k): _jsonable(v) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [_jsonable(v) for v in x]
+    if isinstance(x, np.ndarray):
+        return _jsonable(x.tolist())
+    if isinstance(x, (np.integer,)):
+        return int(x)
+    if isinstance(x, (float, np.floating)):
+        v = float(x)
+        return v if math.isfinite(v) else None
+    return x

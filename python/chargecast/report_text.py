@@ -1,0 +1,390 @@
+"""The text view of a :class:`chargecast.Report`: tables with units, no model decision.
+
+Every number comes from the report (computed in the core by ``Scenario.run``); this module
+only chooses which rows to print and how to format them.
+"""
+
+from __future__ import annotations
+
+import math
+import textwrap
+from pathlib import Path
+from typing import Any
+
+__all__ = ["SOURCE_NAMES", "render", "source_line"]
+
+#: How each source kind is named in prose.
+SOURCE_NAMES = {
+    "beam_trap": "electron-beam trap",
+    "photon_beam": "photon beam",
+    "electron_impact": "single-collision electron source",
+}
+
+
+def render(report: Any) -> str:
+    """The report as plain text.
+
+    Parameters
+    ----------
+    report : chargecast.Report
+
+    Returns
+    -------
+    str
+    """
+    return "\n".join(_TextReport(report).lines())
+
+
+def source_line(report: Any) -> str:
+    """One line naming the source's setting, for figure titles."""
+    src = report.scenario.source
+    if src.kind == "beam_trap":
+        b = report.beam
+        j = b.current_density_a_cm2
+        return (
+            f"{b.energy_ev:.5g} eV, {b.current_a:.3g} A, {j:.0f} A/cm²"
+            if j >= 100
+            else f"{b.energy_ev:.5g} eV, {b.current_a:.3g} A, {j:.3g} A/cm²"
+        )
+    if src.kind == "photon_beam":
+        return f"{src.photon_energy_ev:.5g} eV photons, {src.flux_cm2_s:.3g} cm⁻² s⁻¹"
+    return f"{src.energy_ev:.5g} eV electrons, single collision"
+
+
+def _table(header: list[str], rows: list[list[str]]) -> list[str]:
+    widths = [max([len(h)] + [len(r[j]) for r in rows]) for j, h in enumerate(header)]
+    out = ["  ".join(h.rjust(w) for h, w in zip(header, widths))]
+    out.append("  ".join("-" * w for w in widths))
+    out += ["  ".join(c.rjust(w) for c, w in zip(r, widths)) for r in rows]
+    return out
+
+
+def _g(v: Any, fmt: str = ".4g") -> str:
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "–"
+    if isinstance(v, float) and math.isinf(v):
+        return "never"
+    return format(v, fmt)
+
+
+def _ladder_rows(charges: list[int], subshells: list[str], target: int) -> set[int]:
+    """Rows worth printing: all for short ladders, else the first two, every row where a new
+    subshell opens, and the last few steps up to the target and beyond."""
+    n = len(charges)
+    if n <= 16:
+        return set(range(n))
+    keep = {0, 1}
+    keep |= {i for i in range(1, n) if subshells[i] != subshells[i - 1]}
+    keep |= {i for i, c in enumerate(charges) if c >= target - 4}
+    return keep
+
+
+class _TextReport:
+    def __init__(self, report: Any) -> None:
+        self.r = report
+        self.s = report.scenario
+        self.q = int(self.s.target.charge)
+
+    def lines(self) -> list[str]:
+        s, r = self.s, self.r
+        t = s.target
+        out = [f"chargecast plan: {s.title or Path(s.file).name}"]
+        if s.description:
+            out.append(s.description)
+        out.append(f"scenario file: {s.file}")
+        out.append(f"target: {t.label} (Z = {t.z}, A/q = {t.mass_number / t.charge:.4f})")
+        out += self.source()
+        out += self.ladder()
+        out += self.one_photon()
+        out += self.evolution()
+        out += self.best_energy()
+        out += self.ions()
+        out += self.neighbourhood()
+        out += self.recommendation()
+        if r.notes:
+            out += ["", "Notes"] + [f"  - {n}" for n in r.notes]
+        out += ["", "Cautions", *textwrap.wrap(r.cautions, 88, initial_indent="  ", subsequent_indent="  ")]
+        return out
+
+    def source(self) -> list[str]:
+        s, r = self.s, self.r
+        src = s.source
+        out = ["", f"Source: {SOURCE_NAMES[src.kind]}"]
+        if src.kind == "beam_trap":
+            b = r.beam
+            out.append(
+                f"  beam {b.energy_ev:.6g} eV, {b.current_a:.4g} A, radius {b.radius_m * 1e6:.4g} µm, "
+                f"current density {b.current_density_a_cm2:.4g} A/cm²; trap length {src.length_m:.4g} m, "
+                f"ion temperature {src.ion_temperature_ev:.4g} eV"
+            )
+        elif src.kind == "photon_beam":
+            out.append(f"  photons {src.photon_energy_ev:.6g} eV, flux {src.flux_cm2_s:.4g} cm⁻² s⁻¹")
+        else:
+            out.append(f"  electrons {src.energy_ev:.6g} eV, spread {src.energy_spread_ev:.4g} eV")
+        species = ", ".join(
+            f"{sp.name} ×{sp.amount:g}" + (f" (enters {sp.initial_charge}+)" if sp.initial_charge else "")
+            for sp in s.species
+        )
+        out.append(f"  species: {species}")
+        if s.residual_gas_pa:
+            out.append(
+                "  residual gas: " + ", ".join(f"{k} {v:.3g} Pa" for k, v in s.residual_gas_pa.items())
+            )
+        return out
+
+    def ladder(self) -> list[str]:
+        lad = self.r.ladder
+        steps = lad.steps
+        if not steps:
+            return []
+        s, q = self.s, self.q
+        e = lad.energy_ev
+        kind = s.source.kind
+        sym = s.target.symbol
+        sigma_name, time_name = "σ Lotz (cm²)", "breeding time (s)"
+        if kind == "beam_trap":
+            head = (
+                f"Stepwise ionization of {sym} at {e:.6g} eV, {lad.current_density_a_cm2:.4g} A/cm² "
+                "(ionization only: a lower bound on the time)"
+            )
+        elif kind == "photon_beam":
+            head = (
+                f"Stepwise photoionization of {sym} at {e:.6g} eV, "
+                f"{s.source.flux_cm2_s:.3g} photons cm⁻² s⁻¹ "
+                "(one charge per photon: an upper bound on the time)"
+            )
+            sigma_name, time_name = "σ photo (cm²)", "time (s)"
+        else:
+            head = f"Ionization steps of {sym} (Lotz cross sections at {e:.6g} eV)"
+        header = ["charge", "IE (eV)", "threshold (eV)", "subshell", sigma_name, time_name, "jτ (C/cm²)"]
+        # Columns that mean nothing for this source are left out (they stay in the JSON).
+        ncol = {"beam_trap": 7, "photon_beam": 6, "electron_impact": 5}[kind]
+        header = header[:ncol]
+        charges = [st.charge for st in steps]
+        keep = _ladder_rows(charges, [st.subshell or "" for st in steps], q)
+        rows = []
+        for i, st in enumerate(steps):
+            if i not in keep:
+                if i - 1 in keep:
+                    rows.append(["⋮"] + [""] * (ncol - 1))
+                continue
+            mark = " ◀" if st.charge == q else ""
+            rows.append(
+                [
+                    f"{st.charge}+{mark}",
+                    _g(st.ionization_energy_ev, ".5g"),
+                    _g(st.threshold_ev, ".6g"),
+                    st.subshell or "–",
+                    _g(st.cross_section_cm2, ".3e"),
+                    _g(st.breeding_time_s, ".3e"),
+                    _g(st.j_tau_c_cm2, ".3e"),
+                ][:ncol]
+            )
+        out = ["", head, *_table(header, rows)]
+        out.append(
+            "  IE: energy to make q+ from (q−1)+; threshold: sum from the neutral; subshell: the electron "
+            "removed; σ at the beam energy"
+        )
+        if len(keep) < len(steps):
+            out.append(
+                "  (rows shown: the first steps, each newly opened subshell and the steps near the target; "
+                "--json lists all)"
+            )
+        return out
+
+    def one_photon(self) -> list[str]:
+        th = self.r.photon_thresholds
+        if th is None:
+            return []
+        header = ["charge", "Σ IE (eV)", "yield per photon", "via subshell (probability)"]
+        rows = [
+            [
+                f"{row.charge}+",
+                f"{row.threshold_ev:.6g}",
+                _g(float(row.yield_per_photon), ".3g"),
+                ", ".join(f"{rt.subshell} ({rt.probability:.2g})" for rt in row.routes) or "–",
+            ]
+            for row in th
+            if row.yield_per_photon >= 1e-4
+        ]
+        top = max((row.charge for row in th), default=0)
+        return [
+            "",
+            f"One photon of {self.s.source.photon_energy_ev:.6g} eV on neutral {self.s.target.symbol}: "
+            f"charges it can make (up to {top}+ by energy; rows with yield ≥ 1e-4)",
+            *_table(header, rows),
+        ]
+
+    def evolution(self) -> list[str]:
+        r, q = self.r, self.q
+        evo = r.target_evolution
+        if evo is None:
+            y = r.fractions_at_extraction[self.s.target_species.name]
+            rows = [
+                [f"{c}+" + (" ◀" if c == q else ""), _g(float(f), ".4f")] for c, f in enumerate(y) if f > 0.01
+            ]
+            if not rows:
+                return []
+            return [
+                "",
+                f"Single-collision yields of {self.s.target.symbol} (fraction of the ions made)",
+                *_table(["charge", "yield (fraction)"], rows),
+            ]
+        header = ["charge", "peak fraction", "peak time (s)", "at extraction"]
+        table = [
+            [
+                f"{x.charge}+" + (" ◀" if x.charge == q else ""),
+                _g(x.peak_fraction, ".4f"),
+                _g(x.peak_time_s, ".3e"),
+                _g(x.fraction_at_extraction, ".4f"),
+            ]
+            for x in r.evolution_summary
+            if max(1, q - 5) <= x.charge <= q + 3
+        ]
+        t = evo.times_s
+        return [
+            "",
+            f"Charge-state evolution of {evo.element} ({t[0]:.3g} … {t[-1]:.3g} s, "
+            f"{len(t)} times; states near {q}+ above 1 %)",
+            *_table(header, table),
+            f"  extraction at {r.extraction_time_s:.4g} s ({r.extraction_chosen}); mean charge there "
+            f"{r.mean_charge_at_extraction:.2f}",
+        ]
+
+    def best_energy(self) -> list[str]:
+        sc = self.r.best_energy
+        s, q = self.s, self.q
+        what = "photon" if s.source.kind == "photon_beam" else "electron"
+        e = sc.energies_ev
+        out = [
+            "",
+            f"Best {what} energy for {s.target.symbol}{q}+ ({len(e)} energies {e[0]:.4g} … {e[-1]:.4g} eV)",
+        ]
+        if sc.kind == "appearance":
+            k = sc.own_index
+            out[-1] += ": the largest partial cross section of one collision"
+            out.append(
+                f"  best: {sc.best_energy_ev:.5g} eV, σ({q}+) = {sc.best_cross_section_cm2:.3e} cm², "
+                f"{sc.best_fraction:.4f} of the ions made"
+            )
+            out.append(
+                f"  near the scenario's {sc.own_energy_ev:.5g} eV ({e[k]:.4g} eV on the grid): "
+                f"σ({q}+) = {sc.target_cross_section_cm2[k]:.3e} cm², "
+                f"{sc.target_share[k]:.4f} of the ions made"
+            )
+            return out
+        line = f"  best: {sc.best_energy_ev:.5g} eV"
+        if sc.best_time_s is not None:
+            line += f" at {sc.best_time_s:.3g} s"
+        out.append(line + f", fraction {sc.best_fraction:.4f}")
+        if self.r.target_peak is not None:
+            t, f = self.r.target_peak
+            energy = s.source.energy_ev if s.source.energy_ev is not None else s.source.photon_energy_ev
+            out.append(f"  at the scenario's {energy:.5g} eV: peak fraction {f:.4f} at {t:.3g} s")
+        return out
+
+    def ions(self) -> list[str]:
+        d = self.r.ions
+        if d is None:
+            return []
+        t, q = self.s.target, self.q
+        per = d.per_charge
+        qs = range(max(1, q - 3), min(len(per) - 1, q + 3) + 1)
+        rows = [
+            [f"{t.isotope}{c}+" + (" ◀" if c == q else ""), _g(float(per[c]), ".3e")]
+            for c in qs
+            if per[c] >= 0.5 or c == q
+        ]
+        out = [
+            "",
+            f"Ions per extraction at {d.time_s:.4g} s (N_e = {d.electrons_in_trap:.4g} electrons, "
+            f"compensation {d.compensation:.3g})",
+            *_table(["ion", "ions per extraction"], rows),
+        ]
+        out.append(
+            f"  {t.label}: {d.target:.3e} ions per extraction; all charge states of "
+            f"{t.isotope}: {d.all_charges:.3e}"
+        )
+        out.append(
+            "  N_q = f·N_e·F_q / Σ q·F_q, shared among species by amount × mean charge"
+            + (f"; isotopic share {d.isotope_share:.4g}" if d.isotope_share != 1.0 else "")
+        )
+        return out
+
+    def neighbourhood(self) -> list[str]:
+        o = self.r.neighbourhood
+        header = [
+            "ion",
+            "m/q (u/e)",
+            "A/q",
+            "intensity",
+            "Δ(m/q)",
+            "sep. (FWHM)",
+            "contamination",
+            "R needed",
+        ]
+        rows = [
+            [
+                i.ion + (" (gas)" if i.residual_gas else ""),
+                f"{i.m_over_q:.5f}",
+                f"{i.a_over_q:.4f}",
+                _g(float(i.intensity), ".3g"),
+                f"{i.delta_m_over_q:+.5f}",
+                f"{i.separation_fwhm:.2f}",
+                _g(float(i.contamination), ".3g"),
+                f"{i.resolving_power_needed:.0f}",
+            ]
+            for i in o.interferers
+        ]
+        out = [
+            "",
+            f"A/q neighbourhood of {o.target} (m/q {o.m_over_q:.5f} u/e, A/q {o.a_over_q:.4f}; "
+            f"R = {o.resolving_power:g}, {o.peak_shape} peaks, FWHM {o.fwhm:.4g} u/e)",
+        ]
+        if rows:
+            out += _table(header, rows)
+        else:
+            out.append("  no other line within reach at this resolving power")
+        out.append(f"  purity of {o.target} in its window: {o.purity:.4f}")
+        if o.resolving_power_needed is not None:
+            verdict = "resolved" if o.resolved else "NOT resolved"
+            out.append(
+                "  resolving power needed to split every interferer above 1 % contamination: "
+                f"{o.resolving_power_needed:.0f} (separator: {o.resolving_power:g}: {verdict})"
+            )
+        return out
+
+    def recommendation(self) -> list[str]:
+        sep, q = self.s.separator, self.q
+        header = ["ion", "A/q", "fraction", "purity", "score", "main contaminant"]
+        rows = [
+            [
+                f"{rk.ion}" + (" ◀" if rk.charge == q else ""),
+                f"{rk.a_over_q:.4f}",
+                f"{rk.fraction:.4f}",
+                f"{rk.purity:.4f}",
+                f"{rk.score:.4f}",
+                "–"
+                if rk.main_contaminant is None
+                else f"{rk.main_contaminant} ({rk.main_contaminant_share:.2g})",
+            ]
+            for rk in [rk for rk in self.r.ranking if rk.eligible][:8]
+        ]
+        rng = f", A/q {sep.aq_range[0]:g} … {sep.aq_range[1]:g}" if sep.aq_range is not None else ""
+        out = ["", f"Charge states of {self.s.target.isotope} ranked by fraction × purity{rng}"]
+        out += _table(header, rows) if rows else ["  none with at least 0.1 % of the isotope's ions"]
+        rec = self.r.recommended
+        if rec is not None:
+            same = " (the target itself)" if rec.charge == q else ""
+            t_ex = self.r.extraction_time_s
+            at = f" at {t_ex:.3g} s" if t_ex is not None else ""
+            out.append(
+                f"Recommended charge state: {rec.label}{same}: A/q {rec.a_over_q:.4f}, "
+                f"{rec.fraction * 100:.3g} % of the isotope's ions{at}, purity {rec.purity:.4f}"
+            )
+            if rec.peak_time_s is not None:
+                out.append(
+                    f"  {rec.label} itself peaks at {rec.peak_fraction * 100:.3g} % of the element's ions at "
+                    f"{rec.peak_time_s:.3g} s: consider retuning the extraction time for it"
+                )
+        return out

@@ -1,0 +1,302 @@
+//! The report of a scenario: everything a plan shows, as plain data. [`super::run`] makes
+//! it; text, JSON, HTML and figures are views of it (in the Python package) that make no
+//! model decision of their own.
+
+use ndarray::Array2;
+
+use super::settings::Scenario;
+use crate::solve::evolution;
+use crate::sources::energy_map::EnergyTimeMap;
+use crate::sources::photon_beam::ChargeThreshold;
+use crate::sources::Source;
+use crate::spectrum::{ChargeStateRank, LineList, OverlapReport};
+
+/// Printed at the end of every report.
+pub const CAUTIONS: &str =
+    "These results are planning estimates from empirical cross sections (typically within \
+tens of percent), not a substitute for measurement. Ion sources involve high voltage, \
+X-rays from electron beams, intense UV/X-ray photon beams, strong magnets and \
+cryogens, and sometimes radioactive species: follow local codes, the facility's \
+radiation-safety officer and licensed practice.";
+
+/// A charge state below this fraction of the isotope's ions is not a practical choice:
+/// the recommendation skips it (and a target peaking below it gets a note).
+pub const MIN_PRACTICAL_FRACTION: f64 = 1e-3;
+/// Interferers above this contamination must be split by the separator.
+pub const STRONG_CONTAMINATION: f64 = 0.01;
+/// Charge states whose fraction ever exceeds this are listed in the evolution summary.
+pub const SUMMARY_THRESHOLD: f64 = 0.01;
+/// Interferers within this many target FWHM are examined (the overlap search range).
+pub const SEARCH_FWHM: f64 = 3.0;
+/// Residual gas streams in continuously: its ions are averaged over ages from this
+/// fraction of the extraction time up to the extraction time …
+pub const RESIDUAL_AGE_START: f64 = 1e-4;
+/// … on this many log-spaced ages.
+pub const RESIDUAL_AGE_POINTS: usize = 200;
+/// The breeding ladder goes this many charge states past the target.
+pub const LADDER_BEYOND_TARGET: u32 = 2;
+
+/// One step (q−1)+ → q+ of the breeding ladder.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LadderStep {
+    /// The charge state made, q.
+    pub charge: u32,
+    /// Energy to make q+ from (q−1)+ (eV).
+    pub ionization_energy_ev: f64,
+    /// Sum of the ionization energies from the neutral to q+ (eV).
+    pub threshold_ev: f64,
+    /// The subshell the electron is removed from (None for a bare ion).
+    pub subshell: Option<String>,
+    /// Cross section of the step at the beam energy (cm²): Lotz, or photoionization.
+    pub cross_section_cm2: f64,
+    /// Time to reach q+ from the neutral (s; infinite if unreachable; None for a single
+    /// collision).
+    pub breeding_time_s: Option<f64>,
+    /// Ionization factor jτ to reach q+ (C/cm²; None for a photon beam).
+    pub j_tau_c_cm2: Option<f64>,
+}
+
+/// Stepwise breeding of the target element up to two states past the target.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Ladder {
+    /// Beam energy (electron or photon, eV).
+    pub energy_ev: f64,
+    /// Electron current density (A/cm²; beam trap only).
+    pub current_density_a_cm2: Option<f64>,
+    /// "lotz" or "photoionization".
+    pub cross_section_kind: &'static str,
+    pub steps: Vec<LadderStep>,
+}
+
+/// The charge-state evolution of one species (time sources).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpeciesEvolution {
+    /// Species name as in the scenario ("Xe", "129Xe").
+    pub name: String,
+    pub symbol: String,
+    pub times_s: Vec<f64>,
+    /// Fractions [times, charge 0…Z].
+    pub fractions: Array2<f64>,
+}
+
+impl SpeciesEvolution {
+    /// Time (s) and value of the largest fraction of `charge` on the grid (first if tied).
+    pub fn peak(&self, charge: u32) -> (f64, f64) {
+        evolution::peak(&self.times_s, self.fractions.view(), charge as usize)
+    }
+
+    /// Fractions at `time_s`, linear between grid points (held at the grid's ends).
+    pub fn at(&self, time_s: f64) -> Vec<f64> {
+        evolution::interpolate(&self.times_s, self.fractions.view(), time_s)
+    }
+
+    /// Mean charge Σ q·F_q / Σ F_q at every time.
+    pub fn mean_charge(&self) -> Vec<f64> {
+        evolution::mean_charge(self.fractions.view())
+    }
+
+    /// Index of the grid time nearest to `time_s`.
+    pub fn nearest_index(&self, time_s: f64) -> usize {
+        evolution::nearest_index(&self.times_s, time_s)
+    }
+}
+
+/// How the extraction time was chosen.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ExtractionChoice {
+    /// Given in the scenario ([time] extraction_s).
+    Scenario,
+    /// When the target charge state peaks on the time grid.
+    TargetPeak,
+}
+
+impl ExtractionChoice {
+    pub fn label(&self) -> &'static str {
+        match self {
+            ExtractionChoice::Scenario => "scenario",
+            ExtractionChoice::TargetPeak => "peak of the target",
+        }
+    }
+}
+
+/// One charge state of the target element in the evolution summary.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ChargeSummary {
+    pub charge: u32,
+    pub peak_fraction: f64,
+    pub peak_time_s: f64,
+    pub final_fraction: f64,
+    pub fraction_at_extraction: f64,
+}
+
+/// Fractions of each species when the ions leave the source.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SpeciesFractions {
+    pub name: String,
+    pub symbol: String,
+    /// Fraction of each charge 0…Z.
+    pub fractions: Vec<f64>,
+}
+
+/// The electron energy that maximises the target's partial cross section in one collision,
+/// with the appearance curves behind it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct AppearanceScan {
+    pub energies_ev: Vec<f64>,
+    /// Partial cross section (cm²) of each final charge 0…Z at each energy.
+    pub cross_sections_cm2: Array2<f64>,
+    pub charge: u32,
+    /// The scenario's own electron energy (eV).
+    pub own_energy_ev: f64,
+    /// Partial cross section of the target charge at each energy (cm²).
+    pub target_cross_section_cm2: Vec<f64>,
+    /// Its share of all ions made at each energy.
+    pub target_share: Vec<f64>,
+    pub best_energy_ev: f64,
+    pub best_cross_section_cm2: f64,
+    pub best_fraction: f64,
+    /// Grid index nearest to the scenario's energy.
+    pub own_index: usize,
+}
+
+/// The best-energy search.
+#[derive(Clone, Debug)]
+pub enum EnergyScan {
+    /// Target fraction over a beam-energy × time grid (beam trap, photon beam); the
+    /// scenario's own energy is on the grid when it lies within it.
+    Map(EnergyTimeMap),
+    /// Partial cross sections of one collision over energy (electron impact).
+    Appearance(AppearanceScan),
+}
+
+impl EnergyScan {
+    pub fn energies_ev(&self) -> &[f64] {
+        match self {
+            EnergyScan::Map(m) => &m.energies_ev,
+            EnergyScan::Appearance(a) => &a.energies_ev,
+        }
+    }
+    pub fn best_energy_ev(&self) -> f64 {
+        match self {
+            EnergyScan::Map(m) => m.best_energy_ev,
+            EnergyScan::Appearance(a) => a.best_energy_ev,
+        }
+    }
+    pub fn best_fraction(&self) -> f64 {
+        match self {
+            EnergyScan::Map(m) => m.best_fraction,
+            EnergyScan::Appearance(a) => a.best_fraction,
+        }
+    }
+    /// None for a single collision (no time).
+    pub fn best_time_s(&self) -> Option<f64> {
+        match self {
+            EnergyScan::Map(m) => Some(m.best_time_s),
+            EnergyScan::Appearance(_) => None,
+        }
+    }
+}
+
+/// Ions per extraction of a beam trap.
+#[derive(Clone, Debug, PartialEq)]
+pub struct IonsPerExtraction {
+    pub time_s: f64,
+    pub electrons_in_trap: f64,
+    pub compensation: f64,
+    /// The species that provides the target isotope.
+    pub species: String,
+    /// Its share of the trapped charge: ions of all species share the compensated space
+    /// charge in proportion to amount × mean charge.
+    pub species_share_of_charge: f64,
+    /// Share of the target isotope in the species (its natural abundance, or 1).
+    pub isotope_share: f64,
+    /// Ions of the target isotope per extraction at each charge 0…Z.
+    pub per_charge: Vec<f64>,
+    pub target: f64,
+    pub all_charges: f64,
+}
+
+/// The target's A/q neighbourhood at the separator's resolving power.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Neighbourhood {
+    pub overlap: OverlapReport,
+    /// Resolving power needed to split every interferer above [`STRONG_CONTAMINATION`]
+    /// (None when there is none).
+    pub resolving_power_needed: Option<f64>,
+    /// Whether the separator reaches it.
+    pub resolved: bool,
+}
+
+/// One charge state of the target isotope in the ranking.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RankedCharge {
+    pub rank: ChargeStateRank,
+    /// In the separator's A/q range and at least [`MIN_PRACTICAL_FRACTION`] of the isotope's ions.
+    pub eligible: bool,
+}
+
+/// The recommended charge state: the best-scored eligible one.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Recommendation {
+    pub charge: u32,
+    pub label: String,
+    pub a_over_q: f64,
+    pub m_over_q: f64,
+    pub fraction: f64,
+    pub purity: f64,
+    pub score: f64,
+    pub main_contaminant: Option<String>,
+    /// When it is not the target: time (s) and fraction of its own peak in the evolution
+    /// (time sources), to suggest retuning the extraction time.
+    pub own_peak: Option<(f64, f64)>,
+}
+
+/// Everything a plan shows.
+#[derive(Clone, Debug)]
+pub struct Report {
+    pub scenario: Scenario,
+    /// The core source that was run.
+    pub source: Source,
+    pub ladder: Ladder,
+    /// Charges one photon makes from the neutral target atom (photon beam).
+    pub photon_thresholds: Option<Vec<ChargeThreshold>>,
+    /// Per species (beam trap, photon beam; empty for a single collision).
+    pub evolutions: Vec<SpeciesEvolution>,
+    /// Extraction time (s) and how it was chosen (None for a single collision).
+    pub extraction: Option<(f64, ExtractionChoice)>,
+    /// Per species: fractions at extraction (the yields of a single collision).
+    pub fractions_at_extraction: Vec<SpeciesFractions>,
+    /// The target element's charge states above [`SUMMARY_THRESHOLD`] (time sources).
+    pub evolution_summary: Vec<ChargeSummary>,
+    /// Mean charge of the target element at the grid time nearest to the extraction.
+    pub mean_charge_at_extraction: Option<f64>,
+    /// Time (s) and fraction of the target's peak at the scenario's settings.
+    pub target_peak: Option<(f64, f64)>,
+    pub energy_scan: EnergyScan,
+    pub ions: Option<IonsPerExtraction>,
+    /// Residual-gas elements in the spectrum: symbol, amount, fractions 0…Z.
+    pub residual_fractions: Vec<(String, f64, Vec<f64>)>,
+    pub lines: LineList,
+    pub neighbourhood: Neighbourhood,
+    /// Charge states of the target isotope, best score first.
+    pub ranking: Vec<RankedCharge>,
+    pub recommended: Option<Recommendation>,
+    pub notes: Vec<String>,
+}
+
+impl Report {
+    /// The evolution of the species that provides the target (None for a single collision).
+    pub fn target_evolution(&self) -> Option<&SpeciesEvolution> {
+        let name = &self.scenario.target_species().name;
+        self.evolutions.iter().find(|e| &e.name == name)
+    }
+
+    /// Fractions at extraction of the species that provides the target.
+    pub fn target_fractions(&self) -> &SpeciesFractions {
+        let name = &self.scenario.target_species().name;
+        self.fractions_at_extraction
+            .iter()
+            .find(|e| &e.name == name)
+            .unwrap_or(&self.fractions_at_extraction[0])
+    }
+}

@@ -1,0 +1,527 @@
+//! Running a scenario: every number of the report, computed once, here.
+
+use super::report::*;
+use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target};
+use crate::atoms::Element;
+use crate::error::Result;
+use crate::processes::photoionization::subshell_cross_sections_cm2;
+use crate::sources::appearance_curves;
+use crate::sources::breeding::breeding_ladder;
+use crate::sources::electron_beam::current_density_a_cm2;
+use crate::sources::photon_beam::photon_thresholds;
+use crate::sources::Source;
+use crate::spectrum::{
+    aq_lines, clean_charge_states, overlaps, resolve_isotope, AcceptanceWindow, OverlapSettings,
+    PeakShape, Peaks, SpeciesInput,
+};
+
+/// Progress callback: `(done, total, what)`.
+pub type Progress<'a> = &'a mut dyn FnMut(usize, usize, &str);
+
+/// Compute the report of a scenario. `progress(done, total, "energy scan")` is called
+/// during the energy scan, the long step.
+pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
+    let s = scenario;
+    let source = s.build_source()?;
+    let target_el = s.target.element();
+    let q = s.target.charge;
+    let mut notes = Vec::new();
+
+    let ladder = ladder(s, &source, target_el)?;
+    let photon_thresholds = match &s.source {
+        SourceSettings::PhotonBeam(p) => Some(photon_thresholds(target_el, p.photon_energy_ev)?),
+        _ => None,
+    };
+
+    let mut evolutions = Vec::new();
+    let mut extraction = None;
+    let mut fractions_at_extraction = Vec::new();
+    let mut ions = None;
+    let energy_scan;
+    if let Source::ElectronImpact(src) = &source {
+        for sp in &s.species {
+            fractions_at_extraction.push(SpeciesFractions {
+                name: sp.name.clone(),
+                symbol: sp.symbol.clone(),
+                fractions: src.charge_yields(sp.element())?,
+            });
+        }
+        progress(0, 1, "energy scan");
+        let scan = appearance_scan(s, src.energy_ev, src.energy_spread_ev, target_el)?;
+        progress(1, 1, "energy scan");
+        if scan.best_cross_section_cm2 <= 0.0 {
+            notes.push(format!(
+                "one collision never makes {}{q}+ on the energy grid: raise [energy_scan] stop_ev or choose a lower charge",
+                s.target.symbol
+            ));
+        }
+        energy_scan = EnergyScan::Appearance(scan);
+    } else {
+        let times = s.time.times_s();
+        for sp in &s.species {
+            evolutions.push(SpeciesEvolution {
+                name: sp.name.clone(),
+                symbol: sp.symbol.clone(),
+                times_s: times.clone(),
+                fractions: source.evolve(sp.element(), &times, sp.initial_charge)?,
+            });
+        }
+        let target_name = &s.target_species().name;
+        let evo = evolutions
+            .iter()
+            .find(|e| &e.name == target_name)
+            .expect("every species has an evolution");
+        let (_, f_peak) = evo.peak(q);
+        let t_ex = match s.time.extraction_s {
+            Some(t) => (t, ExtractionChoice::Scenario),
+            None => (evo.peak(q).0, ExtractionChoice::TargetPeak),
+        };
+        extraction = Some(t_ex);
+        for e in &evolutions {
+            fractions_at_extraction.push(SpeciesFractions {
+                name: e.name.clone(),
+                symbol: e.symbol.clone(),
+                fractions: e.at(t_ex.0),
+            });
+        }
+        if f_peak < MIN_PRACTICAL_FRACTION {
+            notes.push(format!(
+                "{}{q}+ stays below 0.1 % on the time grid at this setting: see the best energy below, or extend [time] stop_s.",
+                s.target.symbol
+            ));
+        }
+        if let Source::BeamTrap(trap) = &source {
+            ions = Some(ions_per_extraction(
+                s,
+                trap,
+                t_ex.0,
+                &fractions_at_extraction,
+            )?);
+        }
+        energy_scan = EnergyScan::Map(energy_map(s, &source, target_el, &times, progress)?);
+    }
+
+    let (evolution_summary, mean_charge_at_extraction, target_peak) = {
+        let name = &s.target_species().name;
+        match (evolutions.iter().find(|e| &e.name == name), extraction) {
+            (Some(evo), Some((t_ex, _))) => {
+                let at = evo.at(t_ex);
+                let rows = (0..=evo.fractions.ncols() as u32 - 1)
+                    .filter(|c| {
+                        evo.fractions
+                            .column(*c as usize)
+                            .iter()
+                            .any(|v| *v > SUMMARY_THRESHOLD)
+                    })
+                    .map(|c| {
+                        let (t, f) = evo.peak(c);
+                        ChargeSummary {
+                            charge: c,
+                            peak_fraction: f,
+                            peak_time_s: t,
+                            final_fraction: evo.fractions[[evo.times_s.len() - 1, c as usize]],
+                            fraction_at_extraction: at[c as usize],
+                        }
+                    })
+                    .collect();
+                let mean = evo.mean_charge()[evo.nearest_index(t_ex)];
+                (rows, Some(mean), Some(evo.peak(q)))
+            }
+            _ => (Vec::new(), None, None),
+        }
+    };
+
+    let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
+    let lines = spectrum_lines(s, &fractions_at_extraction, &residual_fractions)?;
+    let neighbourhood = neighbourhood(s, &lines)?;
+    let ranking = ranking(s, &lines)?;
+    let recommended = ranking.iter().find(|r| r.eligible).map(|r| {
+        let l = &r.rank.line;
+        let own_peak = match (
+            s.target_species(),
+            evolutions
+                .iter()
+                .find(|e| e.name == s.target_species().name),
+        ) {
+            (_, Some(evo)) if l.charge != q => Some(evo.peak(l.charge)),
+            _ => None,
+        };
+        Recommendation {
+            charge: l.charge,
+            label: l.label(),
+            a_over_q: l.a_over_q,
+            m_over_q: l.m_over_q,
+            fraction: r.rank.fraction,
+            purity: r.rank.purity,
+            score: r.rank.score,
+            main_contaminant: r.rank.main_contaminant.as_ref().map(|c| c.label()),
+            own_peak,
+        }
+    });
+    if recommended.is_none() {
+        notes.push(
+            "no charge state of the target isotope lies in the A/q range with ≥ 0.1 % of its ions"
+                .to_string(),
+        );
+    }
+    Ok(Report {
+        scenario: s.clone(),
+        source,
+        ladder,
+        photon_thresholds,
+        evolutions,
+        extraction,
+        fractions_at_extraction,
+        evolution_summary,
+        mean_charge_at_extraction,
+        target_peak,
+        energy_scan,
+        ions,
+        residual_fractions,
+        lines,
+        neighbourhood,
+        ranking,
+        recommended,
+        notes,
+    })
+}
+
+/// Stepwise breeding of the target element: Lotz steps in an electron beam (the time at the
+/// trap's current density), photoionization steps in a photon beam with one charge per
+/// photon (an upper bound on the time, since inner-shell holes add charges in jumps).
+fn ladder(s: &Scenario, source: &Source, el: &'static Element) -> Result<Ladder> {
+    let top = el.z().min(s.target.charge + LADDER_BEYOND_TARGET);
+    let energy_ev = s.source.energy_ev();
+    let ies = el.ionization_energies_ev();
+    let step = |i: u32, sigma: f64, time: Option<f64>, j_tau: Option<f64>| -> Result<LadderStep> {
+        Ok(LadderStep {
+            charge: i + 1,
+            ionization_energy_ev: ies[i as usize],
+            threshold_ev: el.ion(i64::from(i) + 1)?.threshold_ev(),
+            subshell: el.ion(i64::from(i))?.ionized_subshell().map(|x| x.label()),
+            cross_section_cm2: sigma,
+            breeding_time_s: time,
+            j_tau_c_cm2: j_tau,
+        })
+    };
+    let mut steps = Vec::with_capacity(top as usize);
+    match source {
+        Source::PhotonBeam(p) => {
+            let mut time = 0.0;
+            for i in 0..top {
+                let ion = el.ion(i64::from(i))?;
+                let sigma: f64 = subshell_cross_sections_cm2(&ion, energy_ev)?
+                    .iter()
+                    .map(|x| x.cross_section_cm2)
+                    .sum();
+                let rate = sigma * p.flux_cm2_s;
+                time += if rate > 0.0 {
+                    1.0 / rate
+                } else {
+                    f64::INFINITY
+                };
+                steps.push(step(i, sigma, Some(time), None)?);
+            }
+            return Ok(Ladder {
+                energy_ev,
+                current_density_a_cm2: None,
+                cross_section_kind: "photoionization",
+                steps,
+            });
+        }
+        Source::BeamTrap(t) => {
+            let j = current_density_a_cm2(t.beam.current_a, t.beam.radius_m);
+            for b in breeding_ladder(el, i64::from(top), energy_ev, j, None)? {
+                let i = b.charge;
+                steps.push(step(
+                    i,
+                    b.cross_section_cm2,
+                    Some(b.time_to_next_s),
+                    Some(b.j_tau_c_cm2),
+                )?);
+            }
+            return Ok(Ladder {
+                energy_ev,
+                current_density_a_cm2: Some(j),
+                cross_section_kind: "lotz",
+                steps,
+            });
+        }
+        Source::ElectronImpact(_) => {
+            for b in breeding_ladder(el, i64::from(top), energy_ev, 1.0, None)? {
+                steps.push(step(
+                    b.charge,
+                    b.cross_section_cm2,
+                    None,
+                    Some(b.j_tau_c_cm2),
+                )?);
+            }
+        }
+    }
+    Ok(Ladder {
+        energy_ev,
+        current_density_a_cm2: None,
+        cross_section_kind: "lotz",
+        steps,
+    })
+}
+
+/// Target fraction over the energy × time grid, the scenario's own energy added to the
+/// grid when it lies within it (so the best point is never worse than the scenario's).
+fn energy_map(
+    s: &Scenario,
+    source: &Source,
+    el: &'static Element,
+    times: &[f64],
+    progress: Progress<'_>,
+) -> Result<crate::sources::energy_map::EnergyTimeMap> {
+    let mut energies = s.energy_scan.energies_ev();
+    let own = s.source.energy_ev();
+    if energies[0] <= own && own <= energies[energies.len() - 1] {
+        energies.push(own);
+        energies.sort_by(f64::total_cmp);
+        energies.dedup();
+    }
+    source.energy_time_map(
+        el,
+        &[s.target.charge],
+        &energies,
+        times,
+        &mut |done, total| progress(done, total, "energy scan"),
+    )
+}
+
+fn appearance_scan(
+    s: &Scenario,
+    own_energy_ev: f64,
+    spread_ev: f64,
+    el: &'static Element,
+) -> Result<AppearanceScan> {
+    let energies = s.energy_scan.energies_ev();
+    let sigma = appearance_curves(el, &energies, spread_ev)?;
+    let q = s.target.charge as usize;
+    let target: Vec<f64> = sigma.column(q).to_vec();
+    let share: Vec<f64> = sigma
+        .rows()
+        .into_iter()
+        .zip(&target)
+        .map(|(row, t)| {
+            let total: f64 = row.iter().skip(1).sum();
+            if total > 0.0 {
+                t / total
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    let best = nearest_max(&target);
+    Ok(AppearanceScan {
+        own_index: crate::solve::evolution::nearest_index(&energies, own_energy_ev),
+        best_energy_ev: energies[best],
+        best_cross_section_cm2: target[best],
+        best_fraction: share[best],
+        energies_ev: energies,
+        cross_sections_cm2: sigma,
+        charge: s.target.charge,
+        own_energy_ev,
+        target_cross_section_cm2: target,
+        target_share: share,
+    })
+}
+
+/// Index of the largest value (the first if tied).
+fn nearest_max(v: &[f64]) -> usize {
+    let mut best = (0, f64::NEG_INFINITY);
+    for (i, x) in v.iter().enumerate() {
+        if *x > best.1 {
+            best = (i, *x);
+        }
+    }
+    best.0
+}
+
+/// Natural abundance of the target isotope in a species (1 for an isotope given alone).
+fn isotope_share(species: &SpeciesEntry, target: &Target) -> f64 {
+    if species.mass_number.is_some() {
+        return 1.0;
+    }
+    species
+        .element()
+        .isotopes()
+        .iter()
+        .find(|i| i.mass_number == target.mass_number)
+        .and_then(|i| i.abundance)
+        .unwrap_or(0.0)
+}
+
+/// Ions per extraction of the target isotope. Ions of all species share the compensated
+/// space charge in proportion to amount × mean charge.
+fn ions_per_extraction(
+    s: &Scenario,
+    trap: &crate::sources::BeamTrap,
+    time_s: f64,
+    fractions: &[SpeciesFractions],
+) -> Result<IonsPerExtraction> {
+    let load = |sp: &SpeciesEntry| -> f64 {
+        let f = &fractions
+            .iter()
+            .find(|x| x.name == sp.name)
+            .expect("fractions per species")
+            .fractions;
+        sp.amount * f.iter().enumerate().map(|(q, v)| q as f64 * v).sum::<f64>()
+    };
+    let total: f64 = s.species.iter().map(load).sum();
+    let sp = s.target_species();
+    let share = if total > 0.0 { load(sp) / total } else { 0.0 };
+    let f = &fractions
+        .iter()
+        .find(|x| x.name == sp.name)
+        .expect("fractions per species")
+        .fractions;
+    let single = trap.ions_per_extraction(f)?;
+    let iso = isotope_share(sp, &s.target);
+    let per: Vec<f64> = single.iter().map(|n| n * share).collect();
+    Ok(IonsPerExtraction {
+        time_s,
+        electrons_in_trap: trap.electrons_in_trap(),
+        compensation: trap.compensation,
+        species: sp.name.clone(),
+        species_share_of_charge: share,
+        isotope_share: iso,
+        target: per[s.target.charge as usize] * iso,
+        all_charges: per.iter().sum::<f64>() * iso,
+        per_charge: per.iter().map(|n| n * iso).collect(),
+    })
+}
+
+/// Residual-gas elements with their amounts and charge-state fractions. Residual gas keeps
+/// streaming in: its ions have every age from 0 to the extraction time, so their fractions
+/// are the evolution's time average (trapezoid-like weights on log-spaced ages). A single
+/// collision gives them its yields.
+fn residual_fractions(
+    s: &Scenario,
+    source: &Source,
+    extraction_s: Option<f64>,
+) -> Result<Vec<(String, f64, Vec<f64>)>> {
+    let total: f64 =
+        s.species.iter().map(|sp| sp.amount).sum::<f64>() * s.separator.residual_amount;
+    let mut out = Vec::new();
+    for (symbol, share) in &s.residual_elements {
+        let el = crate::atoms::element(symbol)?;
+        let f = match (source, extraction_s) {
+            (Source::ElectronImpact(src), _) => src.charge_yields(el)?,
+            (_, Some(t_ex)) => {
+                let t = geomspace(t_ex * RESIDUAL_AGE_START, t_ex, RESIDUAL_AGE_POINTS);
+                let pops = source.evolve(el, &t, 0)?;
+                let w = gradient(&t);
+                let wsum: f64 = w.iter().sum();
+                (0..pops.ncols())
+                    .map(|c| {
+                        pops.column(c)
+                            .iter()
+                            .zip(&w)
+                            .map(|(p, w)| p * w)
+                            .sum::<f64>()
+                            / wsum
+                    })
+                    .collect()
+            }
+            _ => continue,
+        };
+        out.push((symbol.clone(), total * share, f));
+    }
+    Ok(out)
+}
+
+/// Central differences of a sequence (one-sided at the ends), as weights of its points.
+fn gradient(t: &[f64]) -> Vec<f64> {
+    let n = t.len();
+    (0..n)
+        .map(|i| match i {
+            0 => t[1] - t[0],
+            _ if i == n - 1 => t[n - 1] - t[n - 2],
+            _ => (t[i + 1] - t[i - 1]) / 2.0,
+        })
+        .collect()
+}
+
+fn spectrum_lines(
+    s: &Scenario,
+    fractions: &[SpeciesFractions],
+    residual: &[(String, f64, Vec<f64>)],
+) -> Result<crate::spectrum::LineList> {
+    let mut inputs: Vec<SpeciesInput> = s
+        .species
+        .iter()
+        .map(|sp| SpeciesInput {
+            spec: sp.name.clone(),
+            amount: sp.amount,
+            fractions: fractions
+                .iter()
+                .find(|f| f.name == sp.name)
+                .map(|f| f.fractions.clone())
+                .unwrap_or_default(),
+            residual: false,
+        })
+        .collect();
+    inputs.extend(residual.iter().map(|(sym, amount, f)| SpeciesInput {
+        spec: sym.clone(),
+        amount: *amount,
+        fractions: f.clone(),
+        residual: true,
+    }));
+    aq_lines(&inputs)
+}
+
+fn peaks(s: &Scenario) -> Result<Peaks> {
+    Peaks::new(
+        s.separator.resolving_power,
+        PeakShape::parse(&s.separator.peak_shape)?,
+    )
+}
+
+fn neighbourhood(s: &Scenario, lines: &crate::spectrum::LineList) -> Result<Neighbourhood> {
+    let sep = &s.separator;
+    let settings = OverlapSettings::new(
+        sep.resolving_power,
+        PeakShape::parse(&sep.peak_shape)?,
+        sep.window_fwhm,
+        SEARCH_FWHM,
+    )?;
+    let iso = resolve_isotope(&s.target.isotope)?;
+    let overlap = overlaps(lines, iso, i64::from(s.target.charge), &settings)?;
+    let needed = overlap
+        .interferences
+        .iter()
+        .filter(|i| i.contamination > STRONG_CONTAMINATION)
+        .map(|i| i.resolving_power_needed)
+        .fold(None, |m: Option<f64>, r| Some(m.map_or(r, |m| m.max(r))));
+    Ok(Neighbourhood {
+        resolved: needed.is_some_and(|r| r <= sep.resolving_power),
+        resolving_power_needed: needed,
+        overlap,
+    })
+}
+
+fn ranking(s: &Scenario, lines: &crate::spectrum::LineList) -> Result<Vec<RankedCharge>> {
+    let sep = &s.separator;
+    let window = match (sep.aq_half_width, sep.relative_half_width) {
+        (Some(w), _) => AcceptanceWindow::HalfWidth(w),
+        (_, Some(w)) => AcceptanceWindow::Relative(w),
+        _ => AcceptanceWindow::Fwhm(sep.window_fwhm),
+    };
+    let iso = resolve_isotope(&s.target.isotope)?;
+    let ranks = clean_charge_states(lines, iso, window, Some(peaks(s)?))?;
+    Ok(ranks
+        .into_iter()
+        .map(|rank| {
+            let in_range = sep
+                .aq_range
+                .is_none_or(|(lo, hi)| lo <= rank.line.a_over_q && rank.line.a_over_q <= hi);
+            RankedCharge {
+                eligible: in_range && rank.fraction >= MIN_PRACTICAL_FRACTION,
+                rank,
+            }
+        })
+        .collect())
+}

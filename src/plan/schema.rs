@@ -1,0 +1,101 @@
+//! The scenario file as written: one serde struct per TOML table, every field optional
+//! where the schema gives a default. `deny_unknown_fields` makes a misspelt field an error
+//! that lists the accepted ones (the schema/parser agreement test reads those lists).
+
+use std::collections::BTreeMap;
+
+use serde::Deserialize;
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawScenario {
+    pub title: Option<String>,
+    pub description: Option<String>,
+    pub target: Option<RawTarget>,
+    pub species: Option<Vec<RawSpecies>>,
+    pub beam_trap: Option<RawBeamTrap>,
+    pub photon_beam: Option<RawPhotonBeam>,
+    pub electron_impact: Option<RawElectronImpact>,
+    pub residual_gas_pa: Option<BTreeMap<String, f64>>,
+    pub time: Option<RawTime>,
+    pub energy_scan: Option<RawEnergyScan>,
+    pub separator: Option<RawSeparator>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawTarget {
+    pub isotope: String,
+    pub charge: i64,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawSpecies {
+    pub name: String,
+    pub amount: Option<f64>,
+    pub initial_charge: Option<i64>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawBeamTrap {
+    pub energy_ev: f64,
+    pub current_a: f64,
+    pub radius_m: Option<f64>,
+    pub current_density_a_cm2: Option<f64>,
+    pub magnetic_field_t: Option<f64>,
+    pub cathode_radius_m: Option<f64>,
+    pub cathode_temperature_k: Option<f64>,
+    pub cathode_field_t: Option<f64>,
+    pub length_m: f64,
+    pub ion_temperature_ev: Option<f64>,
+    pub gas_temperature_k: Option<f64>,
+    pub compensation: Option<f64>,
+    pub processes: Option<Vec<String>>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawPhotonBeam {
+    pub photon_energy_ev: f64,
+    pub flux_cm2_s: f64,
+    pub bandwidth_ev: Option<f64>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawElectronImpact {
+    pub energy_ev: f64,
+    pub energy_spread_ev: Option<f64>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawTime {
+    pub start_s: Option<f64>,
+    pub stop_s: Option<f64>,
+    pub points: Option<i64>,
+    pub extraction_s: Option<f64>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawEnergyScan {
+    pub start_ev: Option<f64>,
+    pub stop_ev: Option<f64>,
+    pub points: Option<i64>,
+    pub scale: Option<String>,
+}
+
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawSeparator {
+    pub resolving_power: Option<f64>,
+    pub peak_shape: Option<String>,
+    pub aq_half_width: Option<f64>,
+    pub relative_half_width: Option<f64>,
+    pub window_fwhm: Option<f64>,
+    pub aq_range: Option<Vec<f64>>,
+    pub residual_amount: Option<f64>,
+}
