@@ -15,8 +15,9 @@ use crate::atoms::{element, split_species, Element, Isotope};
 use crate::error::{Error, Result};
 use crate::processes::gases::gas;
 use crate::sources::beam_trap::{
-    DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
+    Processes, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
 };
+use crate::sources::electron_beam::BeamSize;
 
 /// (name, value) pairs in file or alphabetical order.
 type Pairs = Vec<(String, f64)>;
@@ -328,58 +329,29 @@ impl Checker<'_, '_> {
     }
 
     fn trap(&self, t: RawBeamTrap) -> Result<BeamTrapSettings> {
-        let sizes = [
-            ("radius_m", t.radius_m),
-            ("current_density_a_cm2", t.current_density_a_cm2),
-            ("magnetic_field_t", t.magnetic_field_t),
-        ];
-        let given: Vec<&str> = sizes
-            .iter()
-            .filter(|(_, v)| v.is_some())
-            .map(|(k, _)| *k)
-            .collect();
-        if given.len() != 1 {
-            let path = given
-                .get(1)
-                .map_or("beam_trap".to_string(), |k| format!("beam_trap.{k}"));
-            return Err(self.err(
-                &path,
-                format!(
-                    "the beam size is {}: give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t",
-                    if given.is_empty() { "missing".to_string() } else { format!("given twice ({})", given.join(", ")) }
-                ),
-            ));
-        }
-        let cathode = [t.cathode_radius_m, t.cathode_temperature_k];
-        if t.magnetic_field_t.is_none()
-            && (cathode.iter().any(Option::is_some) || t.cathode_field_t.is_some())
-        {
-            let k = if t.cathode_radius_m.is_some() {
-                "cathode_radius_m"
-            } else if t.cathode_temperature_k.is_some() {
-                "cathode_temperature_k"
-            } else {
-                "cathode_field_t"
+        // The beam-size rule is the core's (BeamSize); its error names the field at fault.
+        BeamSize::from_fields(
+            t.radius_m,
+            t.current_density_a_cm2,
+            t.magnetic_field_t,
+            t.cathode_radius_m,
+            t.cathode_temperature_k,
+            t.cathode_field_t,
+        )
+        .map_err(|e| {
+            let path = match &e {
+                Error::InvalidParameter { name, .. } => format!("beam_trap.{name}"),
+                _ => "beam_trap".to_string(),
             };
-            return Err(self.err(
-                &format!("beam_trap.{k}"),
-                "cathode settings size the beam with the magnetic field: give magnetic_field_t too (and no radius_m or current_density_a_cm2)",
-            ));
-        }
-        if cathode.iter().filter(|c| c.is_some()).count() == 1 {
-            let k = if t.cathode_radius_m.is_some() {
-                "cathode_radius_m"
-            } else {
-                "cathode_temperature_k"
-            };
-            return Err(self.err(
-                &format!("beam_trap.{k}"),
-                "give both cathode_radius_m and cathode_temperature_k (for the Herrmann radius) or neither (Brillouin radius)",
-            ));
-        }
+            self.err(&path, e)
+        })?;
         let cathode_field_t = t.cathode_field_t.unwrap_or(0.0);
         let processes = match t.processes {
-            None => DEFAULT_PROCESSES.iter().map(|p| p.to_string()).collect(),
+            None => Processes::default()
+                .names()
+                .into_iter()
+                .map(str::to_string)
+                .collect(),
             Some(list) => {
                 for (i, p) in list.iter().enumerate() {
                     if !PROCESSES.contains(&p.as_str()) {

@@ -4,19 +4,12 @@
 
 use super::settings::{SourceSettings, Target};
 use crate::atoms::{element, Element};
+use crate::sources::beam_trap::Processes;
 use crate::sources::breeding::breeding_time_s;
 use crate::sources::electron_beam::current_density_a_cm2;
 
-/// Processes a beam trap can include.
-pub const PROCESSES: [&str; 4] = [
-    "ionization",
-    "radiative_recombination",
-    "charge_exchange",
-    "multiple_ionization",
-];
-/// The processes a beam trap includes when the scenario does not list them.
-pub const DEFAULT_PROCESSES: [&str; 3] =
-    ["ionization", "radiative_recombination", "charge_exchange"];
+/// Processes a beam trap can include (the core's list).
+pub const PROCESSES: [&str; 4] = Processes::NAMES;
 /// Peak shapes of the separator.
 pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
 pub const DEFAULT_PEAK_SHAPE: &str = "gaussian";

@@ -6,6 +6,7 @@ use std::collections::BTreeMap;
 use crate::atoms::{element, Element};
 use crate::error::Result;
 use crate::sources::beam_trap::{require_compensation, Processes};
+use crate::sources::electron_beam::BeamSize;
 use crate::sources::{BeamTrap, ElectronBeam, ElectronImpactSource, PhotonBeam, Source};
 
 /// The target ion: one isotope at one charge state.
@@ -72,36 +73,19 @@ impl BeamTrapSettings {
     /// The electron beam: the one place where the beam-size fields choose the model
     /// (radius, current density, Brillouin radius, or Herrmann radius with the cathode).
     pub fn beam(&self) -> Result<ElectronBeam> {
-        let (e, i) = (self.energy_ev, self.current_a);
-        match (
+        let size = BeamSize::from_fields(
             self.radius_m,
             self.current_density_a_cm2,
             self.magnetic_field_t,
-        ) {
-            (Some(r), _, _) => ElectronBeam::with_radius(e, i, r),
-            (_, Some(j), _) => ElectronBeam::with_current_density(e, i, j),
-            (_, _, Some(b)) => match (self.cathode_radius_m, self.cathode_temperature_k) {
-                (Some(rc), Some(tc)) => {
-                    ElectronBeam::with_herrmann(e, i, b, rc, tc, self.cathode_field_t)
-                }
-                _ => ElectronBeam::with_magnetic_field(e, i, b),
-            },
-            _ => Err(crate::error::Error::invalid(
-                "beam size",
-                "none",
-                "give one of radius_m, current_density_a_cm2, magnetic_field_t",
-            )),
-        }
+            self.cathode_radius_m,
+            self.cathode_temperature_k,
+            self.magnetic_field_t.map(|_| self.cathode_field_t),
+        )?;
+        ElectronBeam::new(self.energy_ev, self.current_a, size)
     }
 
-    fn processes(&self) -> Processes {
-        let has = |p: &str| self.processes.iter().any(|x| x == p);
-        Processes {
-            ionization: has("ionization"),
-            multiple_ionization: has("multiple_ionization"),
-            radiative_recombination: has("radiative_recombination"),
-            charge_exchange: has("charge_exchange"),
-        }
+    fn processes(&self) -> Result<Processes> {
+        Processes::from_names(&self.processes)
     }
 
     /// The core trap with the scenario's residual gas.
@@ -115,7 +99,7 @@ impl BeamTrapSettings {
         trap.gas_temperature_k =
             crate::error::require_positive("gas_temperature_k", self.gas_temperature_k)?;
         trap.compensation = require_compensation(self.compensation)?;
-        trap.processes = self.processes();
+        trap.processes = self.processes()?;
         Ok(trap)
     }
 }

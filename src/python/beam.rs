@@ -4,10 +4,10 @@
 use pyo3::prelude::*;
 
 use super::convert::{float_arg, opt_float_arg};
-use crate::error::{Error, Result};
+use crate::error::Error;
 use crate::sources::electron_beam::{
     brillouin_radius_m, effective_energy_ev, electron_speed_m_s, electrons_in_trap,
-    space_charge_depression_v, ElectronBeam,
+    space_charge_depression_v, BeamSize, ElectronBeam,
 };
 
 /// A uniform electron beam.
@@ -56,37 +56,16 @@ impl PyElectronBeam {
         let magnetic_field_t = opt_float_arg("magnetic_field_t", magnetic_field_t)?;
         let cathode_radius_m = opt_float_arg("cathode_radius_m", cathode_radius_m)?;
         let cathode_temperature_k = opt_float_arg("cathode_temperature_k", cathode_temperature_k)?;
-        let cathode_field_t = opt_float_arg("cathode_field_t", cathode_field_t)?.unwrap_or(0.0);
-        let given = [
-            radius_m.is_some(),
-            current_density_a_cm2.is_some(),
-            magnetic_field_t.is_some(),
-        ];
-        if given.iter().filter(|g| **g).count() != 1 {
-            return Err(Error::invalid(
-                "beam size",
-                "radius_m / current_density_a_cm2 / magnetic_field_t",
-                "give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t",
-            )
-            .into());
-        }
-        let inner = match (radius_m, current_density_a_cm2, magnetic_field_t) {
-            (Some(r), _, _) => ElectronBeam::with_radius(energy_ev, current_a, r)?,
-            (_, Some(j), _) => ElectronBeam::with_current_density(energy_ev, current_a, j)?,
-            (_, _, Some(b)) => match (cathode_radius_m, cathode_temperature_k) {
-                (Some(rc), Some(tc)) => ElectronBeam::with_herrmann(energy_ev, current_a, b, rc, tc, cathode_field_t)?,
-                (None, None) => ElectronBeam::with_magnetic_field(energy_ev, current_a, b)?,
-                _ => {
-                    return Err(Error::invalid(
-                        "cathode",
-                        "only one of cathode_radius_m / cathode_temperature_k",
-                        "give both cathode_radius_m and cathode_temperature_k for the Herrmann radius, or neither",
-                    )
-                    .into())
-                }
-            },
-            _ => unreachable_beam()?,
-        };
+        let cathode_field_t = opt_float_arg("cathode_field_t", cathode_field_t)?;
+        let size = BeamSize::from_fields(
+            radius_m,
+            current_density_a_cm2,
+            magnetic_field_t,
+            cathode_radius_m,
+            cathode_temperature_k,
+            cathode_field_t,
+        )?;
+        let inner = ElectronBeam::new(energy_ev, current_a, size)?;
         Ok(PyElectronBeam { inner })
     }
     #[getter]
@@ -144,14 +123,6 @@ impl PyElectronBeam {
             self.inner.energy_ev, self.inner.current_a, self.inner.radius_m, self.inner.current_density_a_cm2
         )
     }
-}
-
-fn unreachable_beam() -> Result<ElectronBeam> {
-    Err(Error::invalid(
-        "beam size",
-        "none",
-        "give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t",
-    ))
 }
 
 #[pyfunction]

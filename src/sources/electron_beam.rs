@@ -238,6 +238,101 @@ pub fn electrons_in_trap(current_a: f64, energy_ev: f64, length_m: f64) -> f64 {
     current_a * length_m / (ELEMENTARY_CHARGE_C * electron_speed_m_s(energy_ev))
 }
 
+/// How the size of a beam is given: exactly one of its radius, its current density or the
+/// magnetic field that compresses it (the Brillouin radius, or Herrmann's with the cathode's
+/// radius, temperature and field). The one place this rule is written; the Python
+/// constructor and the scenario checker both use it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum BeamSize {
+    Radius(f64),
+    CurrentDensity(f64),
+    Brillouin {
+        magnetic_field_t: f64,
+    },
+    Herrmann {
+        magnetic_field_t: f64,
+        cathode_radius_m: f64,
+        cathode_temperature_k: f64,
+        cathode_field_t: f64,
+    },
+}
+
+impl BeamSize {
+    /// The size from the optional fields as a user writes them. An error names the field at
+    /// fault (its `name`), so callers can point at it.
+    pub fn from_fields(
+        radius_m: Option<f64>,
+        current_density_a_cm2: Option<f64>,
+        magnetic_field_t: Option<f64>,
+        cathode_radius_m: Option<f64>,
+        cathode_temperature_k: Option<f64>,
+        cathode_field_t: Option<f64>,
+    ) -> Result<Self> {
+        let sizes = [
+            ("radius_m", radius_m),
+            ("current_density_a_cm2", current_density_a_cm2),
+            ("magnetic_field_t", magnetic_field_t),
+        ];
+        let given: Vec<&str> = sizes
+            .iter()
+            .filter(|(_, v)| v.is_some())
+            .map(|(k, _)| *k)
+            .collect();
+        let size_error = || {
+            let (name, how) = match given.get(1) {
+                None => ("radius_m", "missing".to_string()),
+                Some(second) => (*second, format!("given twice ({})", given.join(", "))),
+            };
+            Error::invalid(
+                name,
+                format!("the beam size is {how}"),
+                "give exactly one of radius_m, current_density_a_cm2 or magnetic_field_t",
+            )
+        };
+        if given.len() != 1 {
+            return Err(size_error());
+        }
+        let cathode = [
+            ("cathode_radius_m", cathode_radius_m),
+            ("cathode_temperature_k", cathode_temperature_k),
+            ("cathode_field_t", cathode_field_t),
+        ];
+        let first_cathode = cathode.iter().find(|(_, v)| v.is_some()).map(|(k, _)| *k);
+        if let (None, Some(name)) = (magnetic_field_t, first_cathode) {
+            return Err(Error::invalid(
+                name,
+                "given",
+                "cathode settings size the beam with the magnetic field: give magnetic_field_t too (and no radius_m or current_density_a_cm2)",
+            ));
+        }
+        match (radius_m, current_density_a_cm2, magnetic_field_t) {
+            (Some(r), _, _) => Ok(BeamSize::Radius(r)),
+            (_, Some(j), _) => Ok(BeamSize::CurrentDensity(j)),
+            (_, _, Some(b)) => match (cathode_radius_m, cathode_temperature_k) {
+                (Some(rc), Some(tc)) => Ok(BeamSize::Herrmann {
+                    magnetic_field_t: b,
+                    cathode_radius_m: rc,
+                    cathode_temperature_k: tc,
+                    cathode_field_t: cathode_field_t.unwrap_or(0.0),
+                }),
+                (None, None) => Ok(BeamSize::Brillouin {
+                    magnetic_field_t: b,
+                }),
+                (Some(_), None) | (None, Some(_)) => Err(Error::invalid(
+                    if cathode_radius_m.is_some() {
+                        "cathode_radius_m"
+                    } else {
+                        "cathode_temperature_k"
+                    },
+                    "given alone",
+                    "give both cathode_radius_m and cathode_temperature_k (for the Herrmann radius) or neither (Brillouin radius)",
+                )),
+            },
+            (None, None, None) => Err(size_error()),
+        }
+    }
+}
+
 /// A uniform electron beam: energy, current, radius and the current density they imply.
 #[derive(Clone, Debug)]
 pub struct ElectronBeam {
@@ -322,6 +417,30 @@ impl ElectronBeam {
         Self::with_radius(energy_ev, current_a, radius_m)
     }
 
+    /// A beam of the given size (see [`BeamSize`]).
+    pub fn new(energy_ev: f64, current_a: f64, size: BeamSize) -> Result<Self> {
+        match size {
+            BeamSize::Radius(r) => Self::with_radius(energy_ev, current_a, r),
+            BeamSize::CurrentDensity(j) => Self::with_current_density(energy_ev, current_a, j),
+            BeamSize::Brillouin { magnetic_field_t } => {
+                Self::with_magnetic_field(energy_ev, current_a, magnetic_field_t)
+            }
+            BeamSize::Herrmann {
+                magnetic_field_t,
+                cathode_radius_m,
+                cathode_temperature_k,
+                cathode_field_t,
+            } => Self::with_herrmann(
+                energy_ev,
+                current_a,
+                magnetic_field_t,
+                cathode_radius_m,
+                cathode_temperature_k,
+                cathode_field_t,
+            ),
+        }
+    }
+
     /// Electron flux j/e in electrons cm⁻² s⁻¹.
     pub fn electron_flux_per_cm2_s(&self) -> f64 {
         self.current_density_a_cm2 / ELEMENTARY_CHARGE_C
@@ -336,6 +455,63 @@ impl ElectronBeam {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn beam_size_takes_exactly_one_size_and_names_the_field_at_fault() {
+        let name = |r: Result<BeamSize>| match r {
+            Err(Error::InvalidParameter { name, .. }) => name,
+            other => panic!("{other:?}"),
+        };
+        assert_eq!(
+            name(BeamSize::from_fields(None, None, None, None, None, None)),
+            "radius_m"
+        );
+        assert_eq!(
+            name(BeamSize::from_fields(
+                Some(1e-4),
+                Some(100.0),
+                None,
+                None,
+                None,
+                None
+            )),
+            "current_density_a_cm2"
+        );
+        assert_eq!(
+            name(BeamSize::from_fields(
+                Some(1e-4),
+                None,
+                None,
+                Some(1e-3),
+                None,
+                None
+            )),
+            "cathode_radius_m"
+        );
+        assert_eq!(
+            name(BeamSize::from_fields(
+                None,
+                None,
+                Some(1.0),
+                None,
+                Some(1300.0),
+                None
+            )),
+            "cathode_temperature_k"
+        );
+        assert_eq!(
+            BeamSize::from_fields(None, None, Some(2.0), None, None, None).unwrap(),
+            BeamSize::Brillouin {
+                magnetic_field_t: 2.0
+            }
+        );
+        let herrmann = BeamSize::from_fields(None, None, Some(2.0), Some(1e-3), Some(1300.0), None);
+        assert!(
+            matches!(herrmann, Ok(BeamSize::Herrmann { cathode_field_t, .. }) if cathode_field_t == 0.0)
+        );
+        let beam = ElectronBeam::new(5000.0, 0.1, BeamSize::CurrentDensity(300.0)).unwrap();
+        assert!((beam.current_density_a_cm2 - 300.0).abs() < 1e-9);
+    }
 
     fn rel(a: f64, b: f64) -> f64 {
         (a - b).abs() / b.abs()
