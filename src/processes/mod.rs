@@ -4,13 +4,18 @@
 //! subshells, binding energies and X-ray yields); they know nothing of beams, traps or
 //! rate networks, which the layers above build from them.
 
+pub mod beam_heating;
 pub mod charge_exchange;
+pub mod coulomb_logarithm;
 pub mod double_ionization;
+pub mod escape;
 pub mod gases;
+pub mod ion_collisions;
 pub mod ion_lotz;
 pub mod kramers;
 pub mod lotz;
 pub mod photoionization;
+pub mod radial_well;
 pub mod radiative_recombination;
 pub mod relaxation;
 pub mod special;
