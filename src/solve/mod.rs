@@ -61,6 +61,7 @@ pub mod evolution;
 mod flux;
 mod radau;
 mod steady;
+pub mod stiff;
 mod tridiagonal;
 
 use ndarray::Array2;

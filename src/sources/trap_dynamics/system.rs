@@ -1,0 +1,438 @@
+//! The right-hand side of the ion-dynamics model (see the parent module for the equations)
+//! and the diagnostics derived from a state: temperatures, overlaps, escape fluxes,
+//! compensation and well depth.
+
+use crate::error::Result;
+use crate::processes::charge_exchange::mean_ion_speed_m_s;
+use crate::processes::coulomb_logarithm::ion_ion_coulomb_log;
+use crate::processes::escape::{escape_energy_ev, escape_rate_per_s};
+use crate::processes::ion_collisions::{
+    energy_exchange_rate_per_s, ion_collision_rate_per_s, IonCloud,
+};
+use crate::processes::radial_well::{beam_edge_potential_v, RadialWell};
+use crate::solve::stiff::{forward_difference_jacobian, StiffSystem, StiffTolerances};
+use ndarray::Array2;
+
+use super::super::beam_trap::BeamTrap;
+use super::rates::{gas_temperature_ev, SpeciesRates};
+use super::{DynamicsSwitches, TrapDynamics};
+
+/// Populations below this fraction of the particle scale are too small for their own
+/// temperature to be resolved (see `derive`).
+const REGULARISATION: f64 = 1e-12;
+
+/// Running totals appended to the state vector.
+pub(crate) const TOTALS: usize = 6;
+/// Index of each running total after the populations.
+pub(crate) const FED: usize = 0;
+pub(crate) const ESCAPED: usize = 1;
+pub(crate) const HEAT_IN: usize = 2;
+pub(crate) const IONIZATION_HEAT_IN: usize = 3;
+pub(crate) const ENERGY_OUT: usize = 4;
+pub(crate) const FEED_ENERGY_IN: usize = 5;
+
+/// The model as a stiff system: populations and thermal contents of every species, then
+/// the running totals.
+pub(crate) struct TrapSystem {
+    pub species: Vec<SpeciesRates>,
+    /// Start of each species' block (N_0…N_Z, then U_0…U_Z).
+    pub offsets: Vec<usize>,
+    pub dim: usize,
+    pub switches: DynamicsSwitches,
+    pub axial_barrier_v: f64,
+    pub drift_tube_radius_m: f64,
+    pub beam_radius_m: f64,
+    pub length_m: f64,
+    pub edge_potential_v: f64,
+    pub electrons: f64,
+    pub fixed_compensation: f64,
+    pub gas_temperature_ev: f64,
+    pub initial_temperature_ev: f64,
+    /// Particle scale for the tolerances and the temperature regularisation.
+    pub scale: f64,
+}
+
+/// Everything derived from one state that the right-hand side and the outputs share.
+pub(crate) struct Derived {
+    pub compensation: f64,
+    pub well_depth_v: f64,
+    /// Per species, per charge: N ≥ 0, T, overlap, cloud area (m²), ⟨φ⟩ inside (V).
+    pub n: Vec<Vec<f64>>,
+    pub t: Vec<Vec<f64>>,
+    pub overlap: Vec<Vec<f64>>,
+    pub area: Vec<Vec<f64>>,
+    pub mean_phi: Vec<Vec<f64>>,
+    /// Escape rates (s⁻¹) over the axial and the radial barrier.
+    pub axial: Vec<Vec<f64>>,
+    pub radial: Vec<Vec<f64>>,
+}
+
+impl TrapSystem {
+    pub(crate) fn new(
+        trap: &BeamTrap,
+        dynamics: &TrapDynamics,
+        species: Vec<SpeciesRates>,
+    ) -> Result<Self> {
+        let mut offsets = Vec::with_capacity(species.len());
+        let mut dim = 0;
+        for s in &species {
+            offsets.push(dim);
+            dim += 2 * (s.z + 1);
+        }
+        let electrons = trap.electrons_in_trap();
+        let initial: f64 = species.iter().map(|s| s.initial_atoms).sum();
+        let fed: f64 = species.iter().map(|s| s.feed_per_s).sum();
+        // Populations are measured against what the trap can hold and what is put in.
+        let scale = initial.max(electrons).max(fed * 1e-3).max(1.0);
+        Ok(TrapSystem {
+            species,
+            offsets,
+            dim: dim + TOTALS,
+            switches: dynamics.switches,
+            axial_barrier_v: dynamics.axial_barrier_v,
+            drift_tube_radius_m: dynamics.drift_tube_radius_m,
+            beam_radius_m: trap.beam.radius_m,
+            length_m: trap.length_m,
+            edge_potential_v: beam_edge_potential_v(trap.beam.current_a, trap.beam.speed_m_s()),
+            electrons,
+            fixed_compensation: trap.compensation,
+            gas_temperature_ev: gas_temperature_ev(trap),
+            initial_temperature_ev: trap.ion_temperature_ev,
+            scale,
+        })
+    }
+
+    /// Index of N_sq and U_sq.
+    pub(crate) fn n_index(&self, s: usize, q: usize) -> usize {
+        self.offsets[s] + q
+    }
+    pub(crate) fn u_index(&self, s: usize, q: usize) -> usize {
+        self.offsets[s] + self.species[s].z + 1 + q
+    }
+    pub(crate) fn total_index(&self, k: usize) -> usize {
+        self.dim - TOTALS + k
+    }
+
+    /// Atoms at t = 0 in charge 0 at the initial temperature; totals zero.
+    pub(crate) fn initial_state(&self) -> Vec<f64> {
+        let mut y = vec![0.0; self.dim];
+        for (s, sp) in self.species.iter().enumerate() {
+            y[self.n_index(s, 0)] = sp.initial_atoms;
+            y[self.u_index(s, 0)] = sp.initial_atoms * self.initial_temperature_ev;
+        }
+        y
+    }
+
+    /// Tolerances: `rtol`, and absolute ones at 1e-3·rtol of the particle scale (U at 1 eV).
+    pub(crate) fn tolerances(&self, rtol: f64) -> StiffTolerances {
+        let a = self.scale * rtol * 1e-3;
+        let mut atol = vec![a; self.dim];
+        for k in 0..TOTALS {
+            atol[self.dim - TOTALS + k] = a * 1e3;
+        }
+        StiffTolerances { rtol, atol }
+    }
+
+    /// Populations at or below the regularisation level exchange no energy and add no
+    /// collisions: their share of any rate is below the solver's resolution.
+    fn negligible(&self) -> f64 {
+        self.scale * REGULARISATION
+    }
+
+    fn well(&self, compensation: f64) -> RadialWell {
+        RadialWell {
+            edge_potential_v: self.edge_potential_v,
+            beam_radius_m: self.beam_radius_m,
+            drift_tube_radius_m: self.drift_tube_radius_m,
+            compensation,
+        }
+    }
+
+    /// Temperatures, overlaps, cloud sizes, escape rates and the well from a state.
+    pub(crate) fn derive(&self, y: &[f64]) -> Derived {
+        let sw = self.switches;
+        // Regularised T = (U + ε T₀)/(N + ε), ε at the solver's absolute noise level: a
+        // population too small to resolve takes the initial temperature for its rates, one
+        // well above it its own U/N. U itself, the conserved quantity, is never altered.
+        let eps = self.scale * REGULARISATION;
+        let mut n = Vec::with_capacity(self.species.len());
+        let mut t = Vec::with_capacity(self.species.len());
+        let mut charge = 0.0;
+        for (s, sp) in self.species.iter().enumerate() {
+            let ns: Vec<f64> = (0..=sp.z).map(|q| y[self.n_index(s, q)].max(0.0)).collect();
+            let ts: Vec<f64> = (0..=sp.z)
+                .map(|q| {
+                    let u = y[self.u_index(s, q)].max(0.0);
+                    (u + eps * self.initial_temperature_ev) / (ns[q] + eps)
+                })
+                .collect();
+            charge += ns
+                .iter()
+                .enumerate()
+                .map(|(q, v)| q as f64 * v)
+                .sum::<f64>();
+            n.push(ns);
+            t.push(ts);
+        }
+        let compensation = if sw.space_charge {
+            charge / self.electrons
+        } else {
+            self.fixed_compensation
+        };
+        let well = self.well(compensation);
+        let depth = well.depth_v();
+        let beam_area = std::f64::consts::PI * self.beam_radius_m * self.beam_radius_m;
+        let mut overlap = Vec::new();
+        let mut area = Vec::new();
+        let mut mean_phi = Vec::new();
+        for (s, sp) in self.species.iter().enumerate() {
+            let mut o = vec![1.0; sp.z + 1];
+            let mut a = vec![beam_area; sp.z + 1];
+            let mut m = vec![0.0; sp.z + 1];
+            for q in 1..=sp.z {
+                let cloud = well.cloud(q as f64, t[s][q]);
+                if sw.overlap {
+                    o[q] = cloud.overlap;
+                    a[q] = cloud.area_m2;
+                }
+                m[q] = cloud.mean_inside_potential_v;
+            }
+            overlap.push(o);
+            area.push(a);
+            mean_phi.push(m);
+        }
+        let mut d = Derived {
+            compensation,
+            well_depth_v: depth,
+            n,
+            t,
+            overlap,
+            area,
+            mean_phi,
+            axial: Vec::new(),
+            radial: Vec::new(),
+        };
+        let (axial, radial) = self.escape_rates(&d);
+        d.axial = axial;
+        d.radial = radial;
+        d
+    }
+
+    /// Escape rates over the axial and radial barriers (s⁻¹) for every population.
+    fn escape_rates(&self, d: &Derived) -> (Vec<Vec<f64>>, Vec<Vec<f64>>) {
+        let mut axial = Vec::new();
+        let mut radial = Vec::new();
+        for (s, sp) in self.species.iter().enumerate() {
+            let mut ax = vec![0.0; sp.z + 1];
+            let mut rad = vec![0.0; sp.z + 1];
+            if self.switches.escape {
+                let speed = |q: usize| mean_ion_speed_m_s(d.t[s][q], sp.mass_u);
+                // Neutrals are not held: they cross the trap at their mean speed.
+                ax[0] = speed(0) / self.length_m;
+                for q in 1..=sp.z {
+                    if d.n[s][q] <= 0.0 {
+                        continue;
+                    }
+                    let nu_i = self.collision_rate(d, s, q);
+                    let tq = d.t[s][q];
+                    let v = speed(q);
+                    ax[q] = escape_rate_per_s(
+                        nu_i,
+                        q as f64 * self.axial_barrier_v / tq,
+                        v / self.length_m,
+                    );
+                    rad[q] = escape_rate_per_s(
+                        nu_i,
+                        q as f64 * d.well_depth_v / tq,
+                        v / self.drift_tube_radius_m,
+                    );
+                }
+            }
+            axial.push(ax);
+            radial.push(rad);
+        }
+        (axial, radial)
+    }
+
+    /// Density (cm⁻³) of population b seen by a: N_b over the larger of the two clouds.
+    fn pair_density_cm3(&self, d: &Derived, a: (usize, usize), b: (usize, usize)) -> f64 {
+        let area = d.area[a.0][a.1].max(d.area[b.0][b.1]);
+        d.n[b.0][b.1] / (self.length_m * area) * 1e-6
+    }
+
+    fn cloud(&self, d: &Derived, a: (usize, usize), b: (usize, usize)) -> IonCloud {
+        IonCloud::new(
+            a.1 as f64,
+            self.species[a.0].mass_u,
+            self.pair_density_cm3(d, b, a),
+            d.t[a.0][a.1],
+        )
+    }
+
+    /// Total Coulomb collision rate of population (s, q) with all trapped ions.
+    fn collision_rate(&self, d: &Derived, s: usize, q: usize) -> f64 {
+        let mut nu = 0.0;
+        for (b, sb) in self.species.iter().enumerate() {
+            for p in 1..=sb.z {
+                if d.n[b][p] <= self.negligible() {
+                    continue;
+                }
+                let me = self.cloud(d, (s, q), (b, p));
+                let other = self.cloud(d, (b, p), (s, q));
+                let log = ion_ion_coulomb_log(&me, &other);
+                nu += ion_collision_rate_per_s(
+                    q as f64,
+                    self.species[s].mass_u,
+                    d.t[s][q],
+                    p as f64,
+                    other.density_cm3,
+                    log,
+                );
+            }
+        }
+        nu
+    }
+
+    /// The right-hand side with its diagnostics.
+    pub(crate) fn rhs_with(&self, f: &mut [f64], d: &Derived) {
+        f.iter_mut().for_each(|v| *v = 0.0);
+        let sw = self.switches;
+        let t_gas = self.gas_temperature_ev;
+        let (i_fed, i_esc, i_heat, i_ion, i_out) = (
+            self.total_index(FED),
+            self.total_index(ESCAPED),
+            self.total_index(HEAT_IN),
+            self.total_index(IONIZATION_HEAT_IN),
+            self.total_index(ENERGY_OUT),
+        );
+        for (s, sp) in self.species.iter().enumerate() {
+            for q in 0..=sp.z {
+                let n = d.n[s][q];
+                let tq = d.t[s][q];
+                let (ni, ui) = (self.n_index(s, q), self.u_index(s, q));
+                if n > 0.0 {
+                    let ov = d.overlap[s][q];
+                    // Electron-impact ionization, carrying the thermal content up.
+                    for (to, rate) in &sp.impact[q] {
+                        let flux = rate * ov * n;
+                        f[ni] -= flux;
+                        f[self.n_index(s, *to)] += flux;
+                        f[ui] -= flux * tq;
+                        let mut u_in = flux * tq;
+                        if sw.ionization_heating && q > 0 {
+                            let gain = flux * d.mean_phi[s][q] * (*to - q) as f64;
+                            u_in += 2.0 / 3.0 * gain;
+                            f[i_ion] += gain;
+                        }
+                        f[self.u_index(s, *to)] += u_in;
+                    }
+                    // Recombination and charge exchange, one step down.
+                    if q > 0 {
+                        let cx = sp.charge_exchange[q] * (tq / sp.cx_reference_ev).sqrt();
+                        let flux = (sp.recombination[q] * ov + cx) * n;
+                        f[ni] -= flux;
+                        f[self.n_index(s, q - 1)] += flux;
+                        f[ui] -= flux * tq;
+                        f[self.u_index(s, q - 1)] += flux * tq;
+                    }
+                    // Beam heating inside the beam.
+                    if sw.heating && q > 0 {
+                        let w = ov * sp.heating_ev_per_s[q] * n;
+                        f[ui] += 2.0 / 3.0 * w;
+                        f[i_heat] += w;
+                    }
+                    // Escape, each ion taking qV + T (neutrals their own 3T/2).
+                    let (ax, rad) = (d.axial[s][q], d.radial[s][q]);
+                    if ax + rad > 0.0 {
+                        let out = (ax + rad) * n;
+                        let energy = if q == 0 {
+                            1.5 * tq * out
+                        } else {
+                            let qf = q as f64;
+                            ax * n * escape_energy_ev(qf * self.axial_barrier_v, tq)
+                                + rad * n * escape_energy_ev(qf * d.well_depth_v, tq)
+                        };
+                        f[ni] -= out;
+                        f[ui] -= 2.0 / 3.0 * energy;
+                        f[i_esc] += out;
+                        f[i_out] += energy;
+                    }
+                }
+                // Energy exchange with every other population.
+                if sw.exchange && q > 0 && n > self.negligible() {
+                    let mut du = 0.0;
+                    for (b, sb) in self.species.iter().enumerate() {
+                        for p in 1..=sb.z {
+                            if (b, p) == (s, q) || d.n[b][p] <= self.negligible() {
+                                continue;
+                            }
+                            let me = self.cloud(d, (s, q), (b, p));
+                            let other = self.cloud(d, (b, p), (s, q));
+                            let log = ion_ion_coulomb_log(&me, &other);
+                            let nu = energy_exchange_rate_per_s(&me, &other, log);
+                            du += nu * (d.t[b][p] - tq) * n;
+                        }
+                    }
+                    f[ui] += du;
+                }
+            }
+            // New 1+ ions from the fed gas, at the gas temperature.
+            if sp.feed_per_s > 0.0 && sp.z >= 1 {
+                f[self.n_index(s, 1)] += sp.feed_per_s;
+                f[self.u_index(s, 1)] += sp.feed_per_s * t_gas;
+                f[i_fed] += sp.feed_per_s;
+                f[self.total_index(FEED_ENERGY_IN)] += 1.5 * sp.feed_per_s * t_gas;
+            }
+        }
+    }
+
+    /// Thermal energy (3/2)ΣU of all populations (eV).
+    pub(crate) fn thermal_energy(&self, y: &[f64]) -> f64 {
+        let mut w = 0.0;
+        for (s, sp) in self.species.iter().enumerate() {
+            for q in 0..=sp.z {
+                w += 1.5 * y[self.u_index(s, q)];
+            }
+        }
+        w
+    }
+}
+
+impl StiffSystem for TrapSystem {
+    fn dim(&self) -> usize {
+        self.dim
+    }
+
+    fn rhs(&self, y: &[f64], f: &mut [f64]) {
+        let d = self.derive(y);
+        self.rhs_with(f, &d);
+    }
+
+    /// Forward differences, then the rows of the running totals of escaped particles and
+    /// escaped energy are corrected so that the Jacobian keeps the model's two conservation
+    /// laws exactly (particles: ΣN + escaped − fed; energy: (3/2)ΣU + out − in). BDF's Newton
+    /// steps with an exact-invariant Jacobian preserve linear invariants, so the bookkeeping
+    /// balances to round-off instead of to the difference error. Those rows feed nothing
+    /// back, so the rest of the solve is unchanged.
+    fn jacobian(&self, y: &[f64], scale: &[f64], jac: &mut Array2<f64>) {
+        forward_difference_jacobian(self, y, scale, jac);
+        let n_rows: Vec<usize> = (0..self.species.len())
+            .flat_map(|s| (0..=self.species[s].z).map(move |q| (s, q)))
+            .map(|(s, q)| self.n_index(s, q))
+            .collect();
+        let u_rows: Vec<usize> = (0..self.species.len())
+            .flat_map(|s| (0..=self.species[s].z).map(move |q| (s, q)))
+            .map(|(s, q)| self.u_index(s, q))
+            .collect();
+        let (esc, fed) = (self.total_index(ESCAPED), self.total_index(FED));
+        let out = self.total_index(ENERGY_OUT);
+        let ins = [HEAT_IN, IONIZATION_HEAT_IN, FEED_ENERGY_IN].map(|k| self.total_index(k));
+        for j in 0..self.dim {
+            let particles: f64 = n_rows.iter().map(|&i| jac[[i, j]]).sum::<f64>() - jac[[fed, j]];
+            jac[[esc, j]] = -particles;
+            let energy: f64 = 1.5 * u_rows.iter().map(|&i| jac[[i, j]]).sum::<f64>()
+                - ins.iter().map(|&i| jac[[i, j]]).sum::<f64>();
+            jac[[out, j]] = -energy;
+        }
+    }
+}
