@@ -62,6 +62,10 @@ pub(crate) struct Derived {
     pub overlap: Vec<Vec<f64>>,
     pub area: Vec<Vec<f64>>,
     pub mean_phi: Vec<Vec<f64>>,
+    /// Total ion–ion collision rate (s⁻¹) of each population.
+    pub collisions: Vec<Vec<f64>>,
+    /// d(N kT)/dt (eV/s) of each population from energy exchange with all others.
+    pub exchange: Vec<Vec<f64>>,
     /// Escape rates (s⁻¹) over the axial and the radial barrier.
     pub axial: Vec<Vec<f64>>,
     pub radial: Vec<Vec<f64>>,
@@ -209,9 +213,14 @@ impl TrapSystem {
             overlap,
             area,
             mean_phi,
+            collisions: Vec::new(),
+            exchange: Vec::new(),
             axial: Vec::new(),
             radial: Vec::new(),
         };
+        let (collisions, exchange) = self.pair_terms(&d);
+        d.collisions = collisions;
+        d.exchange = exchange;
         let (axial, radial) = self.escape_rates(&d);
         d.axial = axial;
         d.radial = radial;
@@ -233,7 +242,7 @@ impl TrapSystem {
                     if d.n[s][q] <= 0.0 {
                         continue;
                     }
-                    let nu_i = self.collision_rate(d, s, q);
+                    let nu_i = d.collisions[s][q];
                     let tq = d.t[s][q];
                     let v = speed(q);
                     ax[q] = escape_rate_per_s(
@@ -269,28 +278,57 @@ impl TrapSystem {
         )
     }
 
-    /// Total Coulomb collision rate of population (s, q) with all trapped ions.
-    fn collision_rate(&self, d: &Derived, s: usize, q: usize) -> f64 {
-        let mut nu = 0.0;
-        for (b, sb) in self.species.iter().enumerate() {
-            for p in 1..=sb.z {
-                if d.n[b][p] <= self.negligible() {
-                    continue;
-                }
-                let me = self.cloud(d, (s, q), (b, p));
-                let other = self.cloud(d, (b, p), (s, q));
-                let log = ion_ion_coulomb_log(&me, &other);
-                nu += ion_collision_rate_per_s(
-                    q as f64,
-                    self.species[s].mass_u,
-                    d.t[s][q],
-                    p as f64,
-                    other.density_cm3,
+    /// One pass over every pair of resolvable populations: each population's total
+    /// collision rate (for escape) and its energy exchange with all others. Pairs share
+    /// one Coulomb logarithm; populations at or below the regularisation level take no part.
+    fn pair_terms(&self, d: &Derived) -> (Vec<Vec<f64>>, Vec<Vec<f64>>) {
+        let zeros =
+            || -> Vec<Vec<f64>> { self.species.iter().map(|sp| vec![0.0; sp.z + 1]).collect() };
+        let (mut nu, mut du) = (zeros(), zeros());
+        let sw = self.switches;
+        if !(sw.escape || sw.exchange) {
+            return (nu, du);
+        }
+        let active: Vec<(usize, usize)> = self
+            .species
+            .iter()
+            .enumerate()
+            .flat_map(|(s, sp)| (1..=sp.z).map(move |q| (s, q)))
+            .filter(|&(s, q)| d.n[s][q] > self.negligible())
+            .collect();
+        for (i, &a) in active.iter().enumerate() {
+            for &b in &active[i..] {
+                let ca = self.cloud(d, a, b);
+                let cb = self.cloud(d, b, a);
+                let log = ion_ion_coulomb_log(&ca, &cb);
+                let (ma, mb) = (self.species[a.0].mass_u, self.species[b.0].mass_u);
+                // a's collisions with b, and b's with a (once for a = b).
+                nu[a.0][a.1] += ion_collision_rate_per_s(
+                    ca.charge,
+                    ma,
+                    ca.temperature_ev,
+                    cb.charge,
+                    cb.density_cm3,
                     log,
                 );
+                if a != b {
+                    nu[b.0][b.1] += ion_collision_rate_per_s(
+                        cb.charge,
+                        mb,
+                        cb.temperature_ev,
+                        ca.charge,
+                        ca.density_cm3,
+                        log,
+                    );
+                    // Exchange, written once for the pair so it conserves energy exactly.
+                    let rate = energy_exchange_rate_per_s(&ca, &cb, log) * d.n[a.0][a.1];
+                    let flow = rate * (cb.temperature_ev - ca.temperature_ev);
+                    du[a.0][a.1] += flow;
+                    du[b.0][b.1] -= flow;
+                }
             }
         }
-        nu
+        (nu, du)
     }
 
     /// The right-hand side with its diagnostics.
@@ -359,21 +397,8 @@ impl TrapSystem {
                     }
                 }
                 // Energy exchange with every other population.
-                if sw.exchange && q > 0 && n > self.negligible() {
-                    let mut du = 0.0;
-                    for (b, sb) in self.species.iter().enumerate() {
-                        for p in 1..=sb.z {
-                            if (b, p) == (s, q) || d.n[b][p] <= self.negligible() {
-                                continue;
-                            }
-                            let me = self.cloud(d, (s, q), (b, p));
-                            let other = self.cloud(d, (b, p), (s, q));
-                            let log = ion_ion_coulomb_log(&me, &other);
-                            let nu = energy_exchange_rate_per_s(&me, &other, log);
-                            du += nu * (d.t[b][p] - tq) * n;
-                        }
-                    }
-                    f[ui] += du;
+                if sw.exchange {
+                    f[ui] += d.exchange[s][q];
                 }
             }
             // New 1+ ions from the fed gas, at the gas temperature.
