@@ -17,6 +17,7 @@ mod plan;
 mod rate_equations;
 mod results;
 mod spectrum;
+mod trap_dynamics;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 
@@ -37,5 +38,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     spectrum::register(m)?;
     plan::register(m)?;
     limits::register(m)?;
+    trap_dynamics::register(m)?;
     Ok(())
 }

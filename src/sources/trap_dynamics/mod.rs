@@ -54,16 +54,16 @@ mod rates;
 mod run;
 mod system;
 
-pub use run::DynamicRun;
+pub(crate) use system::TrapSystem;
 
 use crate::atoms::{parse_species, Species};
 use crate::error::{require_positive, Error, Result};
 use crate::processes::gases::gas;
 use crate::solve::stiff::integrate_stiff;
+pub use run::{Bookkeeping, DynamicRun, SpeciesHistory};
 
 use super::beam_trap::{BeamTrap, GasComponent};
 use rates::SpeciesRates;
-use system::TrapSystem;
 
 /// Default axial barrier (V) of the dynamic model.
 pub const DEFAULT_AXIAL_BARRIER_V: f64 = 100.0;

@@ -21,6 +21,11 @@ use super::{DynamicsSwitches, TrapDynamics};
 /// temperature to be resolved (see `derive`).
 const REGULARISATION: f64 = 1e-12;
 
+/// Temperatures are held above 1e-4 eV (about 1 K) in the rates: trial states of a
+/// Newton iteration may have U ≈ 0 with N > 0, where the collision rates (∝ T^-3/2) would
+/// overflow. No trapped ion cloud is that cold.
+const MIN_TEMPERATURE_EV: f64 = 1e-4;
+
 /// Running totals appended to the state vector.
 pub(crate) const TOTALS: usize = 6;
 /// Index of each running total after the populations.
@@ -167,7 +172,8 @@ impl TrapSystem {
             let ts: Vec<f64> = (0..=sp.z)
                 .map(|q| {
                     let u = y[self.u_index(s, q)].max(0.0);
-                    (u + eps * self.initial_temperature_ev) / (ns[q] + eps)
+                    ((u + eps * self.initial_temperature_ev) / (ns[q] + eps))
+                        .max(MIN_TEMPERATURE_EV)
                 })
                 .collect();
             charge += ns
