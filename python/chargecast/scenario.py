@@ -122,7 +122,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     Raises
     ------
     ScenarioError
-        Naming the file, the line and the field, and what is allowed.
+        Naming the file, the line and the field, and what is allowed; also for a file that
+        cannot be read or holds more than ``MAX_SCENARIO_BYTES`` (1 MiB), which is read no
+        further.
 
     Examples
     --------
@@ -131,15 +133,30 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     True
     """
     p = Path(path)
-    if not p.exists() and str(path) in bundled_scenarios():
-        p = bundled_scenarios()[str(path)]
+    name = _short(str(path))
     try:
-        text = p.read_text(encoding="utf-8")
+        if str(path) in bundled_scenarios() and not p.exists():
+            p = bundled_scenarios()[str(path)]
+        # Read at most one byte past the limit: a path such as /dev/zero or a large data file
+        # is refused at once instead of being read without bound.
+        with open(p, "rb") as f:
+            data = f.read(_core.MAX_SCENARIO_BYTES + 1)
     except OSError as exc:
-        raise ScenarioError(f"{path}: cannot read the scenario file ({exc.strerror or exc})") from None
+        raise ScenarioError(f"{name}: cannot read the scenario file ({exc.strerror or exc})") from None
+    if len(data) > _core.MAX_SCENARIO_BYTES:
+        raise ScenarioError(
+            f"{name}: larger than {_core.MAX_SCENARIO_BYTES} bytes (1 MiB), the most a scenario file may hold"
+        )
+    try:
+        text = data.decode("utf-8")
     except UnicodeDecodeError:
-        raise ScenarioError(f"{path}: not a text file (a scenario is UTF-8 TOML)") from None
+        raise ScenarioError(f"{name}: not a text file (a scenario is UTF-8 TOML)") from None
     return Scenario.from_text(text, str(p))
+
+
+def _short(name: str, keep: int = 60) -> str:
+    """A file name as quoted in a one-line message: at most ``keep`` characters."""
+    return name if len(name) <= keep else f"{name[: keep // 2]}…{name[-keep // 2 :]}"
 
 
 class Scenario(_core.Scenario):

@@ -908,5 +908,6 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRanked>()?;
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
+    m.add("MAX_SCENARIO_BYTES", crate::plan::MAX_SCENARIO_BYTES)?;
     Ok(())
 }

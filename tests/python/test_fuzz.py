@@ -132,3 +132,77 @@ def test_trap_charges_and_feed(initial, target, feed, element) -> None:
         ).evolve("Ne", [1e-3])
 
     _call(with_feed)
+
+
+# --- every public callable, through the generator of the long run (tests/fuzz/) --------------
+# The long run (python3 tests/fuzz/run.py --calls 1000000) draws the same calls, each in a
+# capped worker process; here hypothesis drives the generator with a bounded example count,
+# so that the whole file stays within a few minutes.
+
+import random  # noqa: E402
+import sys  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+import pytest  # noqa: E402
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "fuzz"))
+import calls as fuzz_calls  # noqa: E402
+
+EVERY = settings(max_examples=25, deadline=None, suppress_health_check=list(HealthCheck))
+
+
+def test_every_public_callable_is_covered() -> None:
+    names = fuzz_calls.public_callables()
+    assert "BeamTrap" in names and "load_scenario" in names and "solve_rate_equations" in names
+    assert len(names) > 40
+
+
+@pytest.mark.parametrize("name", fuzz_calls.public_callables())
+@EVERY
+@given(st.randoms(use_true_random=False))
+def test_public_callable_gives_an_answer_or_a_documented_error(name: str, rng: random.Random) -> None:
+    call = fuzz_calls.make_call(rng, name)
+    outcome, detail = fuzz_calls.judge(call)
+    assert outcome in ("ok", "documented"), f"{outcome}: {detail} <- {call!r}"
+
+
+@EVERY
+@given(st.randoms(use_true_random=False))
+def test_methods_of_results_give_an_answer_or_a_documented_error(rng: random.Random) -> None:
+    for _ in range(4):
+        call = fuzz_calls.make_call(rng)
+        outcome, detail = fuzz_calls.judge(call)
+        assert outcome in ("ok", "documented"), f"{outcome}: {detail} <- {call!r}"
+
+
+def test_judge_catches_what_it_must() -> None:
+    def raises_index_error(x: int) -> None:
+        raise IndexError("x")
+
+    def returns_nan_fractions(x: int) -> dict[str, object]:
+        return {"fractions": np.array([0.5, np.nan])}
+
+    def bare_type_error(x: int) -> None:
+        raise TypeError("must be real number, not str")
+
+    assert fuzz_calls.judge(fuzz_calls.Call("f", raises_index_error, [1], {}, ["x"]))[0] == "undocumented"
+    assert fuzz_calls.judge(fuzz_calls.Call("f", returns_nan_fractions, [1], {}, ["x"]))[0] == "bad"
+    assert fuzz_calls.judge(fuzz_calls.Call("f", bare_type_error, [1], {}, ["energy_ev"]))[0] == "undocumented"
+
+
+def test_three_thousand_mutated_scenarios_parse_or_give_a_scenario_error() -> None:
+    """The 3 000-file scenario mutation run: parse only (each file, a few ms)."""
+    rng = random.Random(15)
+    texts = [p.read_text("utf-8") for p in cc.bundled_scenarios().values()]
+    outcomes = {"parsed": 0, "refused": 0}
+    for i in range(3000):
+        text = fuzz_calls.mutate_scenario(rng, rng.choice(texts))
+        try:
+            cc.Scenario.from_text(text, f"mutant{i}.toml")
+            outcomes["parsed"] += 1
+        except cc.ScenarioError as exc:
+            msg = str(exc)
+            assert f"mutant{i}.toml" in msg, msg
+            assert len(msg) < 1500, msg[:300]  # a long bad value is quoted by a prefix
+            outcomes["refused"] += 1
+    assert outcomes["parsed"] > 50 and outcomes["refused"] > 500, outcomes
