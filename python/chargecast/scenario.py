@@ -132,6 +132,8 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     >>> s.time.points > 10
     True
     """
+    if not isinstance(path, (str, os.PathLike)):
+        raise TypeError(f"path: must be a str or path-like (a scenario file), got {type(path).__name__}")
     p = Path(path)
     name = _short(str(path))
     try:
@@ -200,9 +202,11 @@ class Scenario(_core.Scenario):
 
     @classmethod
     def from_text(cls, text: str, filename: str = "<scenario>") -> Scenario:
-        """Read a scenario from TOML text; ``filename`` names it in error messages."""
-        if not isinstance(text, str):
-            raise ScenarioError(f"{filename}: the scenario text must be a str, got {type(text).__name__}")
+        """Read a scenario from TOML text; ``filename`` names it in error messages.
+
+        Raises ``ScenarioError`` for a bad scenario and ``TypeError`` (naming the parameter)
+        when ``text`` or ``filename`` is not a str.
+        """
         return cls(text, filename)
 
     @property

@@ -6,9 +6,11 @@ use std::collections::BTreeMap;
 use std::sync::Mutex;
 
 use numpy::{PyArray1, PyArray2, ToPyArray};
+use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 
 use super::photon_beam::PyChargeThreshold;
+use super::convert::type_name;
 use super::{guard, to_py};
 use crate::plan::{self, EnergyScan, ExtractionChoice, Report, Scenario, SourceSettings, CAUTIONS};
 
@@ -147,9 +149,11 @@ impl PyScenario {
     /// Raises ``ScenarioError`` naming the file, the line and the field.
     #[new]
     #[pyo3(signature = (text, filename="<scenario>"))]
-    fn new(text: &str, filename: &str) -> PyResult<Self> {
+    fn new(text: &Bound<'_, PyAny>, filename: &Bound<'_, PyAny>) -> PyResult<Self> {
+        let text = str_arg("text", "the scenario's TOML text", text)?;
+        let filename = str_arg("filename", "the name used in messages", filename)?;
         Ok(PyScenario {
-            inner: plan::parse_scenario(text, filename)?,
+            inner: plan::parse_scenario(&text, &filename)?,
         })
     }
     #[getter]
@@ -575,9 +579,15 @@ impl PyReport {
     #[pyo3(signature = (scenario, progress=None))]
     fn new(
         py: Python<'_>,
-        scenario: PyRef<'_, PyScenario>,
+        scenario: &Bound<'_, PyAny>,
         progress: Option<Py<PyAny>>,
     ) -> PyResult<Self> {
+        let scenario: PyRef<'_, PyScenario> = scenario.extract().map_err(|_| {
+            PyTypeError::new_err(format!(
+                "scenario: must be a Scenario (from load_scenario), got {}",
+                type_name(scenario)
+            ))
+        })?;
         let failed: Mutex<Option<PyErr>> = Mutex::new(None);
         let scenario = &scenario.inner;
         let report = guard(py, || {
@@ -885,6 +895,16 @@ impl PyReport {
     fn cautions(&self) -> &'static str {
         CAUTIONS
     }
+}
+
+/// A str argument, or a TypeError naming the parameter.
+fn str_arg(name: &str, what: &str, value: &Bound<'_, PyAny>) -> PyResult<String> {
+    value.extract::<String>().map_err(|_| {
+        PyTypeError::new_err(format!(
+            "{name}: must be a str ({what}), got {}",
+            type_name(value)
+        ))
+    })
 }
 
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {

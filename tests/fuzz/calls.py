@@ -32,6 +32,10 @@ import numpy as np
 import chargecast as cc
 
 SYMBOLS = ["H", "He", "C", "O", "Ne", "Ar", "Kr", "Xe", "Au", "Bi", "U", "Og", "Lr"]
+# The quick (CI) runs leave out the heaviest elements, whose photon calls are known to be
+# slow (issue 15, item 9); the long run keeps them.
+QUICK = False
+HEAVY = ("Au", "Bi", "U", "Og", "Lr", 92)
 ISOTOPES = ["40Ar", "129Xe", "Xe-129", "238U", "22Ne", "Bi", "Ar", "12C"]
 GASES = ["H2", "He", "N2", "O2", "CO", "CO2", "H2O", "CH4", "Ne", "Ar", "Kr", "Xe"]
 # Parameters whose values are whole numbers (charges, counts) when plausible.
@@ -72,7 +76,8 @@ def plausible_value(rng: random.Random, name: str) -> Any:
     n = name.lower()
     plural = n.endswith("s") and not n.endswith(("_s", "_pa", "ss", "_cm2_s", "_per_s"))
     if n in ("element", "symbol", "value", "key", "species", "el"):
-        return rng.choice(SYMBOLS + [18, 54, 92, np.int64(18), "xenon", "Qq"])
+        pool = SYMBOLS + [18, 54, 92, np.int64(18), "xenon", "Qq"]
+        return rng.choice([s for s in pool if not (QUICK and s in HEAVY)])
     if "isotope" in n:
         return rng.choice(ISOTOPES)
     if n in ("beam", "electron_beam"):
@@ -81,8 +86,12 @@ def plausible_value(rng: random.Random, name: str) -> Any:
         return {rng.choice(GASES): _positive(rng, -11, -6) for _ in range(rng.randint(0, 3))}
     if n in ("rates", "rates_per_s", "matrix") or n.startswith("rate"):
         k = rng.randint(1, 6)
-        return np.array([[0.0 if i == j else _positive(rng, -3, 3) * (rng.random() < 0.5) for j in range(k)]
-                         for i in range(k)])
+        return np.array(
+            [
+                [0.0 if i == j else _positive(rng, -3, 3) * (rng.random() < 0.5) for j in range(k)]
+                for i in range(k)
+            ]
+        )
     if "fraction" in n or n == "initial" or n.startswith("population"):
         k = rng.randint(1, 8)
         v = np.array([rng.random() for _ in range(k)])
@@ -92,8 +101,10 @@ def plausible_value(rng: random.Random, name: str) -> Any:
     if n == "text":
         return mutate_scenario(rng, rng.choice(list(cc.bundled_scenarios().values())).read_text("utf-8"))
     if n == "processes":
-        return rng.sample(["ionization", "radiative_recombination", "charge_exchange", "multiple_ionization"],
-                          rng.randint(0, 3))
+        return rng.sample(
+            ["ionization", "radiative_recombination", "charge_exchange", "multiple_ionization"],
+            rng.randint(0, 3),
+        )
     if plural:
         k = rng.randint(0, 40)
         if any(w in n for w in ("charge", "q")):
@@ -127,9 +138,30 @@ def mutate_scenario(rng: random.Random, text: str) -> str:
             lines.insert(i, rng.choice(lines))
         elif op == 2 and "=" in line:
             key = line.split("=")[0]
-            value = rng.choice(["nan", "inf", "-inf", "5e-324", "1e308", "-1", "0", '"x"', "true", "[]",
-                                "{}", "[1, 2]", '"' + "a" * 500 + '"', "[" + "1.0, " * 2000 + "1.0]",
-                                "9" * 30, "1e-300", "2", "100000", "100001", '"log"'])
+            value = rng.choice(
+                [
+                    "nan",
+                    "inf",
+                    "-inf",
+                    "5e-324",
+                    "1e308",
+                    "-1",
+                    "0",
+                    '"x"',
+                    "true",
+                    "[]",
+                    "{}",
+                    "[1, 2]",
+                    '"' + "a" * 500 + '"',
+                    "[" + "1.0, " * 2000 + "1.0]",
+                    "9" * 30,
+                    "1e-300",
+                    "2",
+                    "100000",
+                    "100001",
+                    '"log"',
+                ]
+            )
             lines[i] = f"{key}= {value}"
         elif op == 3 and line:
             j = rng.randrange(len(line))
@@ -138,9 +170,25 @@ def mutate_scenario(rng: random.Random, text: str) -> str:
             j = rng.randrange(len(line))
             lines[i] = line[:j] + line[j + 1 :]
         elif op == 5:
-            lines.insert(i, rng.choice(["[target]", "[beam_trap]", "[[species]]", "[photon_beam]",
-                                        "[time]", "[energy_scan]", "[separator]", "[residual_gas_pa]",
-                                        "unknown = 1", 'name = "Ne"', "points = 50", "charge = 200"]))
+            lines.insert(
+                i,
+                rng.choice(
+                    [
+                        "[target]",
+                        "[beam_trap]",
+                        "[[species]]",
+                        "[photon_beam]",
+                        "[time]",
+                        "[energy_scan]",
+                        "[separator]",
+                        "[residual_gas_pa]",
+                        "unknown = 1",
+                        'name = "Ne"',
+                        "points = 50",
+                        "charge = 200",
+                    ]
+                ),
+            )
         elif op == 6:
             lines = lines[: rng.randrange(len(lines) + 1)]
         elif op == 7:

@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import argparse
 import json
-import os
 import random
 import selectors
 import subprocess
@@ -48,9 +47,15 @@ def worker(memory_mib: int) -> None:
             outcome, detail = calls.judge(call)
             what = repr(call)
         except BaseException as exc:  # noqa: BLE001 - a generator failure is reported, not fatal
-            outcome, detail, what = "undocumented", f"while building the call: {type(exc).__name__}: {exc}", "?"
+            outcome, detail, what = (
+                "undocumented",
+                f"while building the call: {type(exc).__name__}: {exc}",
+                "?",
+            )
         dt = time.perf_counter() - t0
-        out.write(json.dumps({"i": int(i), "outcome": outcome, "detail": detail, "what": what, "dt": dt}) + "\n")
+        out.write(
+            json.dumps({"i": int(i), "outcome": outcome, "detail": detail, "what": what, "dt": dt}) + "\n"
+        )
         out.flush()
 
 
@@ -179,14 +184,19 @@ def main() -> int:
         w.kill()
 
     total = time.monotonic() - start
-    print(f"chargecast fuzz run: seed {args.seed}, {args.workers} workers, {args.memory_mib} MiB cap each, {total:.0f} s")
+    print(
+        f"chargecast fuzz run: seed {args.seed}, {args.workers} workers, "
+        f"{args.memory_mib} MiB cap each, {total:.0f} s"
+    )
     print(f"  calls                    {done}")
     print(f"  accepted                 {counts['ok']}")
     print(f"  documented errors        {counts['documented']}")
     print(f"  undocumented exceptions  {counts['undocumented']}")
     print(f"  bad outputs              {counts['bad']}")
     print(f"  aborts                   {counts['aborts']}")
-    print(f"  calls over 2 s           {counts['calls over 2 s']} (watchdog kills {counts['watchdog kills']})")
+    print(
+        f"  calls over 2 s           {counts['calls over 2 s']} (watchdog kills {counts['watchdog kills']})"
+    )
     print(f"  callables exercised      {len(by_callable)}")
     for kind in ("undocumented exceptions", "bad outputs", "aborts", "calls over 2 s"):
         if examples[kind]:

@@ -266,7 +266,9 @@ def test_ctrl_c_during_a_long_scenario_exits_130_without_traceback(tmp_path: Pat
     # The demo with a fine time grid and energy scan: far more than a few seconds of work.
     assert "points = 300" in text and "[energy_scan]" not in text
     slow = tmp_path / "slow.toml"
-    slow.write_text(text.replace("points = 300", "points = 2000") + "\n[energy_scan]\npoints = 2000\n", "utf-8")
+    slow.write_text(
+        text.replace("points = 300", "points = 2000") + "\n[energy_scan]\npoints = 2000\n", "utf-8"
+    )
     env = dict(os.environ, MPLBACKEND="Agg")
     proc = subprocess.Popen(
         [sys.executable, "-m", "chargecast", "plan", str(slow)],
