@@ -65,6 +65,15 @@ Source: exactly one of
     downstream (optional: limits the recommended charge state); ``residual_amount`` (0.05,
     residual-gas ions relative to the species' ions in the A/q spectrum).
 
+Limits
+    A scenario file holds at most 1 MiB (``chargecast._core.MAX_SCENARIO_BYTES``; a longer
+    file is refused without being read further); each grid has 2 … 100 000 points; and
+    the run's estimated memory -- one evolution (time points × charge states) per species
+    plus the energy × time map of the target -- must stay within
+    chargecast.memory_limit_bytes() (2 GiB unless raised with
+    chargecast.set_memory_limit_bytes), else the scenario is refused naming the estimate
+    and the limit. Error messages quote at most a short prefix of a bad value.
+
 Examples
 --------
 >>> import chargecast as cc

@@ -791,8 +791,14 @@ CO = 1e-8
              current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\n[separator]\naq_range = [{list}]\n"
         );
         let err = parse_scenario(&text, "long.toml").unwrap_err().to_string();
-        assert!(err.contains("line 10") && err.contains("separator.aq_range"), "{err}");
-        assert!(err.contains("a list of 80000 numbers") && err.len() < 200, "{err}");
+        assert!(
+            err.contains("line 10") && err.contains("separator.aq_range"),
+            "{err}"
+        );
+        assert!(
+            err.contains("a list of 80000 numbers") && err.len() < 200,
+            "{err}"
+        );
         let name = "x".repeat(400_000);
         let text = format!("[target]\nisotope = \"{name}\"\ncharge = 1\n");
         let err = parse_scenario(&text, "name.toml").unwrap_err().to_string();
@@ -803,11 +809,17 @@ CO = 1e-8
     fn scenarios_beyond_a_mebibyte_or_the_memory_limit_are_refused() {
         let text = format!("# {}\n", "x".repeat(MAX_SCENARIO_BYTES));
         let err = parse_scenario(&text, "big.toml").unwrap_err().to_string();
-        assert!(err.contains("too large") && err.contains("1048576"), "{err}");
+        assert!(
+            err.contains("too large") && err.contains("1048576"),
+            "{err}"
+        );
         let text = "[target]\nisotope = \"40Ar\"\ncharge = 16\n[beam_trap]\nenergy_ev = 6000.0\n\
              current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\n[time]\npoints = 100000\n\
              [energy_scan]\npoints = 100000\n";
         let err = parse_scenario(text, "huge.toml").unwrap_err().to_string();
-        assert!(err.contains("energy_scan.points") && err.contains("limit"), "{err}");
+        assert!(
+            err.contains("energy_scan.points") && err.contains("limit"),
+            "{err}"
+        );
     }
 }

@@ -133,7 +133,10 @@ pub(crate) fn clip(message: &str) -> String {
             out.push_str(word);
         }
         if out.len() > MAX_MESSAGE {
-            let cut = (0..=MAX_MESSAGE).rev().find(|&c| out.is_char_boundary(c)).unwrap_or(0);
+            let cut = (0..=MAX_MESSAGE)
+                .rev()
+                .find(|&c| out.is_char_boundary(c))
+                .unwrap_or(0);
             out.truncate(cut);
             out.push('…');
             break;

@@ -9,8 +9,8 @@ use numpy::{PyArray1, PyArray2, ToPyArray};
 use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 
-use super::photon_beam::PyChargeThreshold;
 use super::convert::type_name;
+use super::photon_beam::PyChargeThreshold;
 use super::{guard, to_py};
 use crate::plan::{self, EnergyScan, ExtractionChoice, Report, Scenario, SourceSettings, CAUTIONS};
 
@@ -148,10 +148,13 @@ impl PyScenario {
     /// Read and check a scenario (TOML text); ``filename`` names it in error messages.
     /// Raises ``ScenarioError`` naming the file, the line and the field.
     #[new]
-    #[pyo3(signature = (text, filename="<scenario>"))]
-    fn new(text: &Bound<'_, PyAny>, filename: &Bound<'_, PyAny>) -> PyResult<Self> {
+    #[pyo3(signature = (text, filename=None), text_signature = "(text, filename='<scenario>')")]
+    fn new(text: &Bound<'_, PyAny>, filename: Option<&Bound<'_, PyAny>>) -> PyResult<Self> {
         let text = str_arg("text", "the scenario's TOML text", text)?;
-        let filename = str_arg("filename", "the name used in messages", filename)?;
+        let filename = match filename {
+            Some(f) => str_arg("filename", "the name used in messages", f)?,
+            None => "<scenario>".to_string(),
+        };
         Ok(PyScenario {
             inner: plan::parse_scenario(&text, &filename)?,
         })
