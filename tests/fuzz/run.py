@@ -111,6 +111,7 @@ def main() -> int:
     counts: Counter[str] = Counter()
     examples: dict[str, list[str]] = defaultdict(list)
     by_callable: Counter[str] = Counter()
+    failing: Counter[str] = Counter()  # (callable, exception type) of undocumented and bad
     slowest: list[tuple[float, str]] = []
     sel = selectors.DefaultSelector()
     workers = [Worker(args.memory_mib) for _ in range(args.workers)]
@@ -156,6 +157,7 @@ def main() -> int:
             by_callable[r["what"].split("(")[0]] += 1
             counts[r["outcome"]] += 1
             if r["outcome"] in ("undocumented", "bad"):
+                failing[f"{r['what'].split('(')[0]}: {r['detail'].split(':')[0]}"] += 1
                 key_ = "undocumented exceptions" if r["outcome"] == "undocumented" else "bad outputs"
                 if len(examples[key_]) < args.examples:
                     examples[key_].append(f"{r['detail']}  <-  {r['what']}")
@@ -203,6 +205,10 @@ def main() -> int:
             print(f"\n{kind}, first {len(examples[kind])}:")
             for e in examples[kind]:
                 print(f"  {e}")
+    if failing:
+        print("\nundocumented exceptions and bad outputs by callable:")
+        for what, n in failing.most_common():
+            print(f"  {n:7d}  {what}")
     print("\nslowest calls:")
     for dt, what in slowest:
         print(f"  {dt:7.2f} s  {what}")

@@ -151,7 +151,8 @@ import calls as fuzz_calls  # noqa: E402
 
 fuzz_calls.QUICK = True
 
-EVERY = settings(max_examples=25, deadline=None, suppress_health_check=list(HealthCheck))
+# Derandomized: CI sees the same calls every run; the long run explores.
+EVERY = settings(max_examples=25, deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
 
 # Defects found by this suite that belong to the input validation of the bindings (issue 15,
 # items 7 and 8), being fixed at the same time in that task: tolerated here by their exact
@@ -161,7 +162,8 @@ KNOWN_ELSEWHERE = [
     re.compile(p)
     for p in (
         r"^TypeError: must be real number, not ",  # bare float conversion (item 7)
-        r"^TypeError: '[\w.]+' object is not (subscriptable|iterable|an instance of '(str|PyArray.*)')",
+        r"^TypeError: '[\w.]+'( object)? is not "
+        r"(subscriptable|iterable|an instance of '(str|float|int|PyArray\w*)')",
         r"^TypeError: only (0-dimensional|length-1) arrays can be converted",
         r"^TypeError: Evolution objects are results",  # no parameter to name
         r"^IndexError: ",  # empty or malformed grids and rows (item 7)
