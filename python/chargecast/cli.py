@@ -33,6 +33,7 @@ from typing import Any, TextIO
 
 from chargecast import __version__
 from chargecast._core import ChargecastError, ScenarioError
+from chargecast.scenario import _short
 
 
 class ProgressBar:
@@ -96,11 +97,6 @@ def _parser() -> argparse.ArgumentParser:
     el = sub.add_parser("element", help="ionization energies and subshells of an element")
     el.add_argument("element", help='symbol, name or Z, e.g. "Xe", "xenon", 54')
     return p
-
-
-def _short(text: str, keep: int = 60) -> str:
-    """A path as quoted in a one-line message: at most ``keep`` characters."""
-    return text if len(text) <= keep else f"{text[: keep // 2]}…{text[-keep // 2 :]}"
 
 
 def _why(exc: OSError) -> str:

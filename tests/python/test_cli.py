@@ -284,3 +284,32 @@ def test_ctrl_c_during_a_long_scenario_exits_130_without_traceback(tmp_path: Pat
     assert proc.returncode == 130, err
     assert "Traceback" not in err
     assert err.strip().splitlines() == ["chargecast: interrupted"], err
+
+
+def test_a_scenario_with_a_list_of_80000_entries_is_refused_by_line_with_a_short_message() -> None:
+    """Once quadratic (15 s): a line count from the start of the text for every field."""
+    text = cc.bundled_scenarios()["demo"].read_text(encoding="utf-8")
+    assert "aq_range = [2.85, 3.05]" in text
+    long = text.replace("aq_range = [2.85, 3.05]", "aq_range = [" + ", ".join(["2.9"] * 80_000) + "]")
+    line = next(i for i, ln in enumerate(long.splitlines(), 1) if ln.startswith("aq_range"))
+    with pytest.raises(cc.ScenarioError) as info:
+        cc.Scenario.from_text(long, "long.toml")
+    msg = str(info.value)
+    assert f"line {line}" in msg and "a list of 80000 numbers" in msg and len(msg) < 250, msg[:300]
+    bad = text.replace('isotope = "129Xe"', 'isotope = "' + "Q" * 400_000 + '"')
+    with pytest.raises(cc.ScenarioError) as info:
+        cc.Scenario.from_text(bad, "name.toml")
+    assert "target.isotope" in str(info.value) and len(str(info.value)) < 400
+
+
+def test_a_scenario_beyond_the_memory_limit_is_refused_before_running() -> None:
+    text = cc.bundled_scenarios()["demo"].read_text(encoding="utf-8")
+    huge = text.replace("points = 300", "points = 100000") + "\n[energy_scan]\npoints = 100000\n"
+    with pytest.raises(cc.ScenarioError, match=r"energy_scan\.points.*limit"):
+        cc.Scenario.from_text(huge, "huge.toml")
+    before = cc.memory_limit_bytes()
+    try:
+        cc.set_memory_limit_bytes(200 << 30)  # raised by the user: the same file is accepted
+        assert cc.Scenario.from_text(huge, "huge.toml").energy_scan.points == 100000
+    finally:
+        cc.set_memory_limit_bytes(before)

@@ -152,7 +152,7 @@ import calls as fuzz_calls  # noqa: E402
 fuzz_calls.QUICK = True
 
 # Derandomized: CI sees the same calls every run; the long run explores.
-EVERY = settings(max_examples=25, deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
+EVERY = settings(max_examples=150, deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
 
 # Defects found by this suite that belong to the input validation of the bindings (issue 15,
 # items 7 and 8), being fixed at the same time in that task: tolerated here by their exact
