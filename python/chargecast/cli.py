@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import shutil
 import stat
 import sys
 import tempfile
@@ -192,13 +193,15 @@ def _run_report(path: str, args: argparse.Namespace, out: TextIO) -> int:
     finally:
         bar.close()
     status = 0
-    with tempfile.TemporaryDirectory(prefix="chargecast-") as staging:
+    staging: str | None = None
+    try:
         rendered: list[Path] = []
         if args.plot:
             try:
+                staging = tempfile.mkdtemp(prefix="chargecast-")
                 rendered = _render_figures(report, Path(staging))
             except (ChargecastError, ImportError, OSError) as exc:
-                sys.stderr.write(f"chargecast: error: the figures could not be drawn: {exc}\n")
+                sys.stderr.write(f"chargecast: error: the figures could not be drawn: {_clip(exc)}\n")
                 status = 1
         planned = [Path(args.plot) / f.name for f in rendered]
         # The report first: whatever happens to the figures, it is not lost.
@@ -217,7 +220,16 @@ def _run_report(path: str, args: argparse.Namespace, out: TextIO) -> int:
                 status = 1
             if written and not args.json:
                 out.write("\nFigures\n" + "".join(f"  {f}\n" for f in written))
+                out.flush()
+    finally:
+        if staging is not None:
+            shutil.rmtree(staging, ignore_errors=True)
     return status
+
+
+def _clip(exc: BaseException) -> str:
+    """An exception's message on one line."""
+    return " ".join(str(exc).split())[:300]
 
 
 class _Usage(Exception):
@@ -320,6 +332,9 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:  # pragma: no cover - e.g. piped into head
         return 0
+    except OSError as exc:  # the report's own stream failed (a full disk behind stdout)
+        sys.stderr.write(f"chargecast: error: cannot write the report: {exc.strerror or _clip(exc)}\n")
+        return 1
 
 
 if __name__ == "__main__":  # pragma: no cover

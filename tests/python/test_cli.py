@@ -313,3 +313,15 @@ def test_a_scenario_beyond_the_memory_limit_is_refused_before_running() -> None:
         assert cc.Scenario.from_text(huge, "huge.toml").energy_scan.points == 100000
     finally:
         cc.set_memory_limit_bytes(before)
+
+
+def test_a_full_stdout_is_one_line_error() -> None:
+    if not Path("/dev/full").exists():
+        pytest.skip("no /dev/full")
+    env = dict(os.environ, MPLBACKEND="Agg")
+    with open("/dev/full", "w") as full:
+        cmd = [sys.executable, "-m", "chargecast", "demo"]
+        r = subprocess.run(cmd, stdout=full, stderr=subprocess.PIPE, text=True, env=env)
+    assert r.returncode == 1
+    (line,) = one_line_errors(r.stderr)
+    assert "cannot write the report" in line
