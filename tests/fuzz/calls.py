@@ -24,6 +24,7 @@ from __future__ import annotations
 import inspect
 import math
 import random
+import re
 import warnings
 from typing import Any, Callable
 
@@ -362,7 +363,8 @@ def judge(call: Call) -> tuple[str, str]:
         return "documented", ""
     except TypeError as exc:
         msg = str(exc)
-        if any(n in msg for n in call.names) or not call.names:
+        # The parameter's name as a word ("argument 'energy_ev'", "energies_ev: must be …").
+        if not call.names or any(re.search(rf"(?<![\w]){re.escape(n)}(?![\w])", msg) for n in call.names):
             return "documented", ""
         return "undocumented", f"TypeError: {msg[:200]}"
     except BaseException as exc:  # noqa: BLE001 - KeyboardInterrupt included: it is never documented

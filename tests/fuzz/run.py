@@ -181,7 +181,12 @@ def main() -> int:
                 feed(nw)
         if now - last_print > 30:
             last_print = now
-            print(f"  {done}/{args.calls} calls, {now - start:.0f} s", file=sys.stderr, flush=True)
+            print(
+                f"  {done}/{args.calls} calls, {now - start:.0f} s: undocumented {counts['undocumented']}, "
+                f"bad {counts['bad']}, aborts {counts['aborts']}, over 2 s {counts['calls over 2 s']}",
+                file=sys.stderr,
+                flush=True,
+            )
     for w in workers:
         w.kill()
 

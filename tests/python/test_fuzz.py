@@ -165,6 +165,7 @@ KNOWN_ELSEWHERE = [
         r"^TypeError: '[\w.]+'( object)? is not "
         r"(subscriptable|iterable|an instance of '(str|float|int|PyArray\w*)')",
         r"^TypeError: only (0-dimensional|length-1) arrays can be converted",
+        r"^TypeError: (string|list|tuple) indices must be integers",  # rows of the spectrum classes (item 7)
         r"^TypeError: Evolution objects are results",  # no parameter to name
         r"^IndexError: ",  # empty or malformed grids and rows (item 7)
         r"^KeyError: 'label'",  # ChargeStateRanking on malformed rows (item 7)
