@@ -805,6 +805,20 @@ CO = 1e-8
         assert!(err.contains("line 2") && err.len() < 300, "{err}");
     }
 
+    /// A valid list of 70 000 entries, one a line: every entry gets its own line.
+    #[test]
+    fn long_valid_lists_get_every_line() {
+        let list = vec!["\"ionization\""; 70_000].join(",\n");
+        let text = format!(
+            "[target]\nisotope = \"40Ar\"\ncharge = 16\n[beam_trap]\nenergy_ev = 6000.0\n\
+             current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\nprocesses = [\n{list}]\n"
+        );
+        let s = parse_scenario(&text, "long.toml").unwrap();
+        assert_eq!(s.lines["beam_trap.processes[0]"], 10);
+        assert_eq!(s.lines["beam_trap.processes[69999]"], 70_009);
+        assert_eq!(s.lines["beam_trap.length_m"], 8);
+    }
+
     #[test]
     fn scenarios_beyond_a_mebibyte_or_the_memory_limit_are_refused() {
         let text = format!("# {}\n", "x".repeat(MAX_SCENARIO_BYTES));
