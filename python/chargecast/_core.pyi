@@ -321,6 +321,9 @@ class PhotonBeam:
 
 def set_memory_limit_bytes(limit_bytes: int) -> None: ...
 def memory_limit_bytes() -> int: ...
+
+MAX_SCENARIO_BYTES: int
+
 def _photoionization_subshells(
     element: str | int, charge: int, photon_energies_ev: ArrayLike
 ) -> tuple[list[str], NDArray[np.float64]]: ...

@@ -8,14 +8,25 @@
     chargecast element SYMBOL                      ionization energies of an element
 
 Exit status: 0 on success, 2 for a scenario or usage error, 1 for any other chargecast
-error. Errors go to stderr; a progress bar is drawn on stderr during long steps when it is
-a terminal.
+error or a figure that could not be written, 130 after Ctrl-C. Errors go to stderr, one
+line each; a progress bar is drawn on stderr during long steps when it is a terminal.
+
+A computed report is never lost to a file problem: the text (or JSON) goes to stdout
+first, then each figure is written into ``--plot DIR``; each figure that cannot be written
+gets a one-line error and the exit status 1. Only chargecast's own figure names in DIR are
+written, each through a new file renamed over the old one, and an existing entry of that
+name that is a symbolic link, a directory or any other non-regular file is refused, so no
+link is followed out of DIR and no other file is overwritten.
 """
 
 from __future__ import annotations
 
 import argparse
+import os
+import shutil
+import stat
 import sys
+import tempfile
 import time
 from collections.abc import Sequence
 from pathlib import Path
@@ -23,6 +34,7 @@ from typing import Any, TextIO
 
 from chargecast import __version__
 from chargecast._core import ChargecastError, ScenarioError
+from chargecast.scenario import _short
 
 
 class ProgressBar:
@@ -68,7 +80,12 @@ def _parser() -> argparse.ArgumentParser:
 
     def report_options(sp: argparse.ArgumentParser) -> None:
         sp.add_argument("--json", action="store_true", help="print the report as JSON instead of text")
-        sp.add_argument("--plot", metavar="DIR", help="write PNG figures into DIR (created if missing)")
+        sp.add_argument(
+            "--plot",
+            metavar="DIR",
+            help="write PNG figures into DIR (created if missing; only chargecast's own "
+            "figure names in it are written)",
+        )
         sp.add_argument("--no-progress", action="store_true", help="no progress bar on stderr")
 
     demo = sub.add_parser("demo", help="run the bundled invented demo scenario")
@@ -83,32 +100,140 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
+def _why(exc: OSError) -> str:
+    return exc.strerror or type(exc).__name__
+
+
+class _Refused(Exception):
+    """A figure path chargecast will not write (it is not one of its own regular files)."""
+
+
+def _install(data: bytes, dir_fd: int, name: str) -> None:
+    """Write ``data`` as ``name`` in the directory open as ``dir_fd``.
+
+    An existing entry is replaced only if it is a regular file: the bytes go to a new file
+    created beside it (never through a link) and renamed over it, which replaces the
+    directory entry itself, so a link or hard link to another file leaves that file alone.
+    """
+    try:
+        st = os.stat(name, dir_fd=dir_fd, follow_symlinks=False)
+    except FileNotFoundError:
+        st = None
+    if st is not None and not stat.S_ISREG(st.st_mode):
+        kind = (
+            "a symbolic link"
+            if stat.S_ISLNK(st.st_mode)
+            else "a directory"
+            if stat.S_ISDIR(st.st_mode)
+            else "not a regular file"
+        )
+        raise _Refused(f"{kind}; chargecast only replaces its own regular figure files")
+    tmp = f".{name}.{os.getpid()}.tmp"
+    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | os.O_NOFOLLOW, 0o644, dir_fd=dir_fd)
+    try:
+        with os.fdopen(fd, "wb") as f:
+            f.write(data)
+        os.replace(tmp, name, src_dir_fd=dir_fd, dst_dir_fd=dir_fd)
+    except BaseException:
+        try:
+            os.unlink(tmp, dir_fd=dir_fd)
+        except OSError:
+            pass
+        raise
+
+
+def _render_figures(report: Any, staging: Path) -> list[Path]:
+    """Draw the report's figures into the private directory ``staging``."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    return report.save_plots(staging)
+
+
+def _write_figures(rendered: list[Path], directory: str, err: TextIO) -> tuple[list[Path], int]:
+    """Copy the rendered figures into ``directory``; one error line per figure not written."""
+    written: list[Path] = []
+    failed = 0
+    target = Path(directory)
+    try:
+        target.mkdir(parents=True, exist_ok=True)
+        dir_fd = os.open(target, os.O_RDONLY | os.O_DIRECTORY)
+    except FileExistsError:
+        err.write(f"chargecast: error: --plot {_short(directory)}: not a directory; no figures written\n")
+        return written, len(rendered)
+    except OSError as exc:
+        err.write(f"chargecast: error: --plot {_short(directory)}: {_why(exc)}; no figures written\n")
+        return written, len(rendered)
+    try:
+        for src in rendered:
+            path = target / src.name
+            try:
+                _install(src.read_bytes(), dir_fd, src.name)
+                written.append(path)
+            except _Refused as exc:
+                failed += 1
+                err.write(f"chargecast: error: not writing {_short(str(path))}: {exc}\n")
+            except OSError as exc:
+                failed += 1
+                err.write(f"chargecast: error: cannot write {_short(str(path))}: {_why(exc)}\n")
+    finally:
+        os.close(dir_fd)
+    return written, failed
+
+
 def _run_report(path: str, args: argparse.Namespace, out: TextIO) -> int:
     from chargecast.scenario import load_scenario
 
+    if args.plot is not None and not args.plot.strip():
+        raise _Usage("--plot needs a directory: give DIR (created if missing), e.g. --plot figures")
     scenario = load_scenario(path)
     bar = ProgressBar(enabled=False if args.no_progress else None)
     try:
         report = scenario.run(progress=bar)
     finally:
         bar.close()
-    figures: list[Path] = []
-    if args.plot:
-        import matplotlib
+    status = 0
+    staging: str | None = None
+    try:
+        rendered: list[Path] = []
+        if args.plot:
+            try:
+                staging = tempfile.mkdtemp(prefix="chargecast-")
+                rendered = _render_figures(report, Path(staging))
+            except (ChargecastError, ImportError, OSError) as exc:
+                sys.stderr.write(f"chargecast: error: the figures could not be drawn: {_clip(exc)}\n")
+                status = 1
+        planned = [Path(args.plot) / f.name for f in rendered]
+        # The report first: whatever happens to the figures, it is not lost.
+        if args.json:
+            import json
 
-        matplotlib.use("Agg")
-        figures = report.save_plots(args.plot)
-    if args.json:
-        import json
+            d = report.to_dict()
+            d["figures"] = [str(f) for f in planned]
+            out.write(json.dumps(d, indent=2, allow_nan=False) + "\n")
+        else:
+            out.write(report.text() + "\n")
+        out.flush()
+        if rendered:
+            written, failed = _write_figures(rendered, args.plot, sys.stderr)
+            if failed:
+                status = 1
+            if written and not args.json:
+                out.write("\nFigures\n" + "".join(f"  {f}\n" for f in written))
+                out.flush()
+    finally:
+        if staging is not None:
+            shutil.rmtree(staging, ignore_errors=True)
+    return status
 
-        d = report.to_dict()
-        d["figures"] = [str(f) for f in figures]
-        out.write(json.dumps(d, indent=2, allow_nan=False) + "\n")
-    else:
-        out.write(report.text() + "\n")
-        if figures:
-            out.write("\nFigures\n" + "".join(f"  {f}\n" for f in figures))
-    return 0
+
+def _clip(exc: BaseException) -> str:
+    """An exception's message on one line."""
+    return " ".join(str(exc).split())[:300]
+
+
+class _Usage(Exception):
+    """A command-line option with a value that is not allowed (exit status 2)."""
 
 
 def _example(name: str | None, out: TextIO) -> int:
@@ -161,7 +286,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     Returns
     -------
     int
-        0 on success, 2 for a scenario or usage error, 1 for other chargecast errors.
+        0 on success, 2 for a scenario or usage error, 1 for other chargecast errors and
+        figures that could not be written, 130 after Ctrl-C.
 
     Examples
     --------
@@ -192,14 +318,23 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _element(args.element, out)
         _parser().print_help(out)
         return 2
+    except _Usage as exc:
+        sys.stderr.write(f"chargecast: error: {exc}\n")
+        return 2
     except ScenarioError as exc:
         sys.stderr.write(f"chargecast: scenario error: {exc}\n")
         return 2
     except ChargecastError as exc:
         sys.stderr.write(f"chargecast: error: {exc}\n")
         return 1
+    except KeyboardInterrupt:
+        sys.stderr.write("\nchargecast: interrupted\n")
+        return 130
     except BrokenPipeError:  # pragma: no cover - e.g. piped into head
         return 0
+    except OSError as exc:  # the report's own stream failed (a full disk behind stdout)
+        sys.stderr.write(f"chargecast: error: cannot write the report: {exc.strerror or _clip(exc)}\n")
+        return 1
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -65,6 +65,15 @@ Source: exactly one of
     downstream (optional: limits the recommended charge state); ``residual_amount`` (0.05,
     residual-gas ions relative to the species' ions in the A/q spectrum).
 
+Limits
+    A scenario file holds at most 1 MiB (``chargecast._core.MAX_SCENARIO_BYTES``; a longer
+    file is refused without being read further); each grid has 2 … 100 000 points; and
+    the run's estimated memory -- one evolution (time points × charge states) per species
+    plus the energy × time map of the target -- must stay within
+    chargecast.memory_limit_bytes() (2 GiB unless raised with
+    chargecast.set_memory_limit_bytes), else the scenario is refused naming the estimate
+    and the limit. Error messages quote at most a short prefix of a bad value.
+
 Examples
 --------
 >>> import chargecast as cc
@@ -122,7 +131,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     Raises
     ------
     ScenarioError
-        Naming the file, the line and the field, and what is allowed.
+        Naming the file, the line and the field, and what is allowed; also for a file that
+        cannot be read or holds more than ``MAX_SCENARIO_BYTES`` (1 MiB), which is read no
+        further.
 
     Examples
     --------
@@ -130,16 +141,33 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     >>> s.time.points > 10
     True
     """
+    if not isinstance(path, (str, os.PathLike)):
+        raise TypeError(f"path: must be a str or path-like (a scenario file), got {type(path).__name__}")
     p = Path(path)
-    if not p.exists() and str(path) in bundled_scenarios():
-        p = bundled_scenarios()[str(path)]
+    name = _short(str(path))
     try:
-        text = p.read_text(encoding="utf-8")
+        if str(path) in bundled_scenarios() and not p.exists():
+            p = bundled_scenarios()[str(path)]
+        # Read at most one byte past the limit: a path such as /dev/zero or a large data file
+        # is refused at once instead of being read without bound.
+        with open(p, "rb") as f:
+            data = f.read(_core.MAX_SCENARIO_BYTES + 1)
     except OSError as exc:
-        raise ScenarioError(f"{path}: cannot read the scenario file ({exc.strerror or exc})") from None
+        raise ScenarioError(f"{name}: cannot read the scenario file ({exc.strerror or exc})") from None
+    if len(data) > _core.MAX_SCENARIO_BYTES:
+        raise ScenarioError(
+            f"{name}: larger than {_core.MAX_SCENARIO_BYTES} bytes (1 MiB), the most a scenario file may hold"
+        )
+    try:
+        text = data.decode("utf-8")
     except UnicodeDecodeError:
-        raise ScenarioError(f"{path}: not a text file (a scenario is UTF-8 TOML)") from None
+        raise ScenarioError(f"{name}: not a text file (a scenario is UTF-8 TOML)") from None
     return Scenario.from_text(text, str(p))
+
+
+def _short(name: str, keep: int = 60) -> str:
+    """A file name as quoted in a one-line message: at most ``keep`` characters."""
+    return name if len(name) <= keep else f"{name[: keep // 2]}…{name[-keep // 2 :]}"
 
 
 class Scenario(_core.Scenario):
@@ -183,9 +211,11 @@ class Scenario(_core.Scenario):
 
     @classmethod
     def from_text(cls, text: str, filename: str = "<scenario>") -> Scenario:
-        """Read a scenario from TOML text; ``filename`` names it in error messages."""
-        if not isinstance(text, str):
-            raise ScenarioError(f"{filename}: the scenario text must be a str, got {type(text).__name__}")
+        """Read a scenario from TOML text; ``filename`` names it in error messages.
+
+        Raises ``ScenarioError`` for a bad scenario and ``TypeError`` (naming the parameter)
+        when ``text`` or ``filename`` is not a str.
+        """
         return cls(text, filename)
 
     @property

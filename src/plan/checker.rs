@@ -8,7 +8,7 @@ use std::fmt::Display;
 use toml::de::DeTable;
 
 use super::defaults::*;
-use super::positions::{line_of, Positions};
+use super::positions::{clip, line_of, Positions};
 use super::schema::*;
 use super::settings::*;
 use crate::atoms::{element, split_species, Element, Isotope};
@@ -27,20 +27,30 @@ type Pairs = Vec<(String, f64)>;
 /// Errors are [`Error::InvalidScenario`] whose message names the line and the field and
 /// says what is allowed.
 pub fn parse_scenario(text: &str, file: &str) -> Result<Scenario> {
+    if text.len() > MAX_SCENARIO_BYTES {
+        return Err(Error::InvalidScenario {
+            file: file.to_string(),
+            message: format!(
+                "{} bytes is too large for a scenario: allowed at most {MAX_SCENARIO_BYTES} bytes (1 MiB)",
+                text.len()
+            ),
+        });
+    }
     let doc = DeTable::parse(text).map_err(|e| {
         let line = e.span().map(|s| line_of(text, s.start));
+        let message = clip(e.message().trim());
         Error::InvalidScenario {
             file: file.to_string(),
             message: match line {
-                Some(l) => format!("line {l}: not valid TOML: {}", e.message().trim()),
-                None => format!("not valid TOML: {}", e.message().trim()),
+                Some(l) => format!("line {l}: not valid TOML: {message}"),
+                None => format!("not valid TOML: {message}"),
             },
         }
     })?;
     let pos = Positions::new(file, text, doc.get_ref());
     let raw: RawScenario = toml::from_str(text).map_err(|e| {
         let path = e.span().and_then(|s| pos.path_at(&s)).unwrap_or_default();
-        let message = plain_serde_message(e.message());
+        let message = clip(&plain_serde_message(e.message()));
         if path.is_empty() {
             let line = e.span().map(|s| line_of(text, s.start));
             Error::InvalidScenario {
@@ -130,6 +140,7 @@ impl Checker<'_, '_> {
         let time = self.time(raw.time, &source, &target)?;
         let energy_scan = self.energy_scan(raw.energy_scan, &source, &target)?;
         let separator = self.separator(raw.separator)?;
+        self.size(&species, &target, &time, &energy_scan)?;
         if let SourceSettings::ElectronImpact(_) = source {
             if let Some(s) = species.iter().find(|s| s.initial_charge != 0) {
                 let i = species.iter().position(|x| x == s).unwrap_or(0);
@@ -154,6 +165,42 @@ impl Checker<'_, '_> {
             separator,
             lines,
         })
+    }
+
+    /// The scenario's size limit, from the size model of `crate::limits`: the run keeps one
+    /// evolution (time points × charge states, f64) per species and the target's energy ×
+    /// time map (one more energy: the beam's own), estimated by the solver's own
+    /// [`crate::solve::energy_map_memory_bytes`]. Beyond the memory limit the scenario is
+    /// refused here, naming the estimate and the limit, before anything is computed; raise
+    /// the limit (`chargecast.set_memory_limit_bytes`) or use fewer points.
+    fn size(
+        &self,
+        species: &[SpeciesEntry],
+        target: &Target,
+        time: &TimeGrid,
+        energy: &EnergyGrid,
+    ) -> Result<()> {
+        use crate::limits::{bytes_for, check_memory};
+        let evolutions = species.iter().fold(0u64, |acc, s| {
+            acc.saturating_add(bytes_for(&[time.points, s.z as usize + 1], 8))
+        });
+        let map = crate::solve::energy_map_memory_bytes(
+            energy.points + 1,
+            time.points,
+            target.z as usize + 1,
+        );
+        let path = if self.pos.line("energy_scan.points").is_some() {
+            "energy_scan.points"
+        } else {
+            "time.points"
+        };
+        self.wrap(
+            path,
+            check_memory(
+                "the scenario's evolutions and energy × time map",
+                evolutions.saturating_add(map),
+            ),
+        )
     }
 
     fn target(&self, raw: Option<RawTarget>) -> Result<Target> {
@@ -222,6 +269,8 @@ impl Checker<'_, '_> {
             ));
         }
         let mut out = Vec::with_capacity(raw.len());
+        // Names seen so far: a set, so that a long list is checked in linear time.
+        let mut seen = std::collections::HashSet::new();
         for (i, s) in raw.into_iter().enumerate() {
             let at = |f: &str| format!("species[{i}].{f}");
             let (el, mass) = self.wrap(&at("name"), split_species(&s.name))?;
@@ -248,7 +297,7 @@ impl Checker<'_, '_> {
                 Some(a) => format!("{a}{}", el.symbol()),
                 None => el.symbol().to_string(),
             };
-            if out.iter().any(|o: &SpeciesEntry| o.name == name) {
+            if !seen.insert(name.clone()) {
                 return Err(self.err(
                     &at("name"),
                     format!("{name} is listed twice: give each species once"),
@@ -537,12 +586,18 @@ impl Checker<'_, '_> {
                     Some((*lo, *hi))
                 }
                 _ => {
+                    // A long list is described by its length, not echoed.
+                    let given = if v.len() == 2 {
+                        format!("{v:?}")
+                    } else {
+                        format!("a list of {} numbers", v.len())
+                    };
                     return Err(self.err(
                         "separator.aq_range",
                         format!(
-                        "{v:?} is not allowed: give [lowest, highest] A/q, 0 < lowest < highest"
-                    ),
-                    ))
+                            "{given} is not allowed: give [lowest, highest] A/q, 0 < lowest < highest"
+                        ),
+                    ));
                 }
             },
         };
@@ -696,5 +751,61 @@ CO = 1e-8
             assert_eq!((el.z(), m), (z, a), "{spec}");
         }
         assert!(split_species("12-C").is_err());
+    }
+
+    /// A list of 80 000 entries (once quadratic: a line count from the start of the text
+    /// per field) is refused with its line and a short message.
+    #[test]
+    fn long_lists_are_refused_with_a_short_message() {
+        let list = vec!["2.9"; 80_000].join(", ");
+        let text = format!(
+            "[target]\nisotope = \"40Ar\"\ncharge = 16\n[beam_trap]\nenergy_ev = 6000.0\n\
+             current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\n[separator]\naq_range = [{list}]\n"
+        );
+        let err = parse_scenario(&text, "long.toml").unwrap_err().to_string();
+        assert!(
+            err.contains("line 10") && err.contains("separator.aq_range"),
+            "{err}"
+        );
+        assert!(
+            err.contains("a list of 80000 numbers") && err.len() < 200,
+            "{err}"
+        );
+        let name = "x".repeat(400_000);
+        let text = format!("[target]\nisotope = \"{name}\"\ncharge = 1\n");
+        let err = parse_scenario(&text, "name.toml").unwrap_err().to_string();
+        assert!(err.contains("line 2") && err.len() < 300, "{err}");
+    }
+
+    /// A valid list of 70 000 entries, one a line: every entry gets its own line.
+    #[test]
+    fn long_valid_lists_get_every_line() {
+        let list = vec!["\"ionization\""; 70_000].join(",\n");
+        let text = format!(
+            "[target]\nisotope = \"40Ar\"\ncharge = 16\n[beam_trap]\nenergy_ev = 6000.0\n\
+             current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\nprocesses = [\n{list}]\n"
+        );
+        let s = parse_scenario(&text, "long.toml").unwrap();
+        assert_eq!(s.lines["beam_trap.processes[0]"], 10);
+        assert_eq!(s.lines["beam_trap.processes[69999]"], 70_009);
+        assert_eq!(s.lines["beam_trap.length_m"], 8);
+    }
+
+    #[test]
+    fn scenarios_beyond_a_mebibyte_or_the_memory_limit_are_refused() {
+        let text = format!("# {}\n", "x".repeat(MAX_SCENARIO_BYTES));
+        let err = parse_scenario(&text, "big.toml").unwrap_err().to_string();
+        assert!(
+            err.contains("too large") && err.contains("1048576"),
+            "{err}"
+        );
+        let text = "[target]\nisotope = \"40Ar\"\ncharge = 16\n[beam_trap]\nenergy_ev = 6000.0\n\
+             current_a = 0.1\nradius_m = 5e-5\nlength_m = 0.4\n[time]\npoints = 100000\n\
+             [energy_scan]\npoints = 100000\n";
+        let err = parse_scenario(text, "huge.toml").unwrap_err().to_string();
+        assert!(
+            err.contains("energy_scan.points") && err.contains("limit"),
+            "{err}"
+        );
     }
 }

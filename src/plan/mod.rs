@@ -22,6 +22,7 @@ pub mod settings;
 pub use checker::parse_scenario;
 pub use report::*;
 pub use run::run;
+pub use schema::{MAX_QUOTE_CHARS, MAX_SCENARIO_BYTES};
 pub use settings::{
     BeamTrapSettings, ElectronImpactSettings, EnergyGrid, PhotonBeamSettings, Scenario, Separator,
     SourceSettings, SpeciesEntry, Target, TimeGrid,

@@ -99,3 +99,13 @@ pub(crate) struct RawSeparator {
     pub aq_range: Option<Vec<f64>>,
     pub residual_amount: Option<f64>,
 }
+
+/// Largest scenario file read (bytes): 1 MiB. A scenario is a few kB; the limit keeps a
+/// mistaken path (`/dev/zero`, a data file) from being read without bound, and bounds the
+/// parser's own working set (the TOML tree and the field positions take a small multiple
+/// of the text), far below the memory limit of the size model (`crate::limits`).
+pub const MAX_SCENARIO_BYTES: usize = 1 << 20;
+
+/// Longest quote of a value in an error message: a longer token is cut to this many
+/// characters and "…".
+pub const MAX_QUOTE_CHARS: usize = 40;

@@ -6,8 +6,10 @@ use std::collections::BTreeMap;
 use std::sync::Mutex;
 
 use numpy::{PyArray1, PyArray2, ToPyArray};
+use pyo3::exceptions::PyTypeError;
 use pyo3::prelude::*;
 
+use super::convert::type_name;
 use super::photon_beam::PyChargeThreshold;
 use super::{guard, to_py};
 use crate::plan::{self, EnergyScan, ExtractionChoice, Report, Scenario, SourceSettings, CAUTIONS};
@@ -146,10 +148,15 @@ impl PyScenario {
     /// Read and check a scenario (TOML text); ``filename`` names it in error messages.
     /// Raises ``ScenarioError`` naming the file, the line and the field.
     #[new]
-    #[pyo3(signature = (text, filename="<scenario>"))]
-    fn new(text: &str, filename: &str) -> PyResult<Self> {
+    #[pyo3(signature = (text, filename=None), text_signature = "(text, filename='<scenario>')")]
+    fn new(text: &Bound<'_, PyAny>, filename: Option<&Bound<'_, PyAny>>) -> PyResult<Self> {
+        let text = str_arg("text", "the scenario's TOML text", text)?;
+        let filename = match filename {
+            Some(f) => str_arg("filename", "the name used in messages", f)?,
+            None => "<scenario>".to_string(),
+        };
         Ok(PyScenario {
-            inner: plan::parse_scenario(text, filename)?,
+            inner: plan::parse_scenario(&text, &filename)?,
         })
     }
     #[getter]
@@ -575,9 +582,15 @@ impl PyReport {
     #[pyo3(signature = (scenario, progress=None))]
     fn new(
         py: Python<'_>,
-        scenario: PyRef<'_, PyScenario>,
+        scenario: &Bound<'_, PyAny>,
         progress: Option<Py<PyAny>>,
     ) -> PyResult<Self> {
+        let scenario: PyRef<'_, PyScenario> = scenario.extract().map_err(|_| {
+            PyTypeError::new_err(format!(
+                "scenario: must be a Scenario (from load_scenario), got {}",
+                type_name(scenario)
+            ))
+        })?;
         let failed: Mutex<Option<PyErr>> = Mutex::new(None);
         let scenario = &scenario.inner;
         let report = guard(py, || {
@@ -887,6 +900,16 @@ impl PyReport {
     }
 }
 
+/// A str argument, or a TypeError naming the parameter.
+fn str_arg(name: &str, what: &str, value: &Bound<'_, PyAny>) -> PyResult<String> {
+    value.extract::<String>().map_err(|_| {
+        PyTypeError::new_err(format!(
+            "{name}: must be a str ({what}), got {}",
+            type_name(value)
+        ))
+    })
+}
+
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyScenario>()?;
     m.add_class::<PyReport>()?;
@@ -908,5 +931,6 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRanked>()?;
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
+    m.add("MAX_SCENARIO_BYTES", crate::plan::MAX_SCENARIO_BYTES)?;
     Ok(())
 }

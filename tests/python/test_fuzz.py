@@ -132,3 +132,116 @@ def test_trap_charges_and_feed(initial, target, feed, element) -> None:
         ).evolve("Ne", [1e-3])
 
     _call(with_feed)
+
+
+# --- every public callable, through the generator of the long run (tests/fuzz/) --------------
+# The long run (python3 tests/fuzz/run.py --calls 1000000) draws the same calls, each in a
+# capped worker process; here hypothesis drives the generator with a bounded example count,
+# so that the whole file stays within a few minutes.
+
+import random  # noqa: E402
+import re  # noqa: E402
+import sys  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+import pytest  # noqa: E402
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "fuzz"))
+import calls as fuzz_calls  # noqa: E402
+
+fuzz_calls.QUICK = True
+
+# Derandomized: CI sees the same calls every run; the long run explores.
+EVERY = settings(max_examples=150, deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
+
+# Defects found by this suite that belong to the input validation of the bindings (issue 15,
+# items 7 and 8), being fixed at the same time in that task: tolerated here by their exact
+# kind so that anything new still fails, and counted in full by the long run. Remove each
+# line when its fix lands; the long run's summary shows which still occur.
+KNOWN_ELSEWHERE = [
+    re.compile(p)
+    for p in (
+        r"^TypeError: must be real number, not ",  # bare float conversion (item 7)
+        r"^TypeError: '[\w.]+'( object)? is not "
+        r"(subscriptable|iterable|an instance of '(str|float|int|PyArray\w*)')",
+        r"^TypeError: only (0-dimensional|length-1) arrays can be converted",
+        r"^TypeError: (string|list|tuple) indices must be integers",  # rows of the spectrum classes (item 7)
+        r"^TypeError: Evolution objects are results",  # no parameter to name
+        r"^IndexError: ",  # empty or malformed grids and rows (item 7)
+        r"^KeyError: 'label'",  # ChargeStateRanking on malformed rows (item 7)
+        r"^AttributeError: '[\w.]+' object has no attribute '\w+'",  # beam= not checked (item 7)
+        r"^OverflowError: ",  # huge integers (item 7)
+        r"^result[\w.\[\]']*: NaN",  # NaN out for accepted input (item 8)
+    )
+]
+
+
+def assert_answer_or_documented(call: object, outcome: str, detail: str) -> None:
+    if outcome in ("undocumented", "bad") and any(p.search(detail) for p in KNOWN_ELSEWHERE):
+        return
+    assert outcome in ("ok", "documented"), f"{outcome}: {detail} <- {call!r}"
+
+
+def test_every_public_callable_is_covered() -> None:
+    names = fuzz_calls.public_callables()
+    assert "BeamTrap" in names and "load_scenario" in names and "solve_rate_equations" in names
+    assert len(names) > 40
+
+
+@pytest.mark.parametrize("name", fuzz_calls.public_callables())
+@EVERY
+@given(st.randoms(use_true_random=False))
+def test_public_callable_gives_an_answer_or_a_documented_error(name: str, rng: random.Random) -> None:
+    call = fuzz_calls.make_call(rng, name)
+    outcome, detail = fuzz_calls.judge(call)
+    assert_answer_or_documented(call, outcome, detail)
+
+
+@EVERY
+@given(st.randoms(use_true_random=False))
+def test_methods_of_results_give_an_answer_or_a_documented_error(rng: random.Random) -> None:
+    for _ in range(4):
+        call = fuzz_calls.make_call(rng)
+        outcome, detail = fuzz_calls.judge(call)
+        assert_answer_or_documented(call, outcome, detail)
+
+
+def test_judge_catches_what_it_must() -> None:
+    def raises_index_error(x: int) -> None:
+        raise IndexError("x")
+
+    def returns_nan_fractions(x: int) -> dict[str, object]:
+        return {"fractions": np.array([0.5, np.nan])}
+
+    def bare_type_error(x: int) -> None:
+        raise TypeError("must be real number, not str")
+
+    assert fuzz_calls.judge(fuzz_calls.Call("f", raises_index_error, [1], {}, ["x"]))[0] == "undocumented"
+    assert fuzz_calls.judge(fuzz_calls.Call("f", returns_nan_fractions, [1], {}, ["x"]))[0] == "bad"
+    assert (
+        fuzz_calls.judge(fuzz_calls.Call("f", bare_type_error, [1], {}, ["energy_ev"]))[0] == "undocumented"
+    )
+
+    def interrupted(x: int) -> None:
+        raise KeyboardInterrupt
+
+    assert fuzz_calls.judge(fuzz_calls.Call("f", interrupted, [1], {}, ["x"]))[0] == "undocumented"
+    assert fuzz_calls.judge(fuzz_calls.Call("f", cc.element, ["Qq"], {}, ["value"]))[0] == "documented"
+
+
+def test_three_thousand_mutated_scenarios_parse_or_give_a_scenario_error() -> None:
+    """The 3 000-file scenario mutation run: parse only (each file, a few ms)."""
+    rng = random.Random(15)
+    texts = [p.read_text("utf-8") for p in cc.bundled_scenarios().values()]
+    outcomes = {"parsed": 0, "refused": 0}
+    for i in range(3000):
+        text = fuzz_calls.mutate_scenario(rng, rng.choice(texts))
+        try:
+            cc.Scenario.from_text(text, f"mutant{i}.toml")
+            outcomes["parsed"] += 1
+        except cc.ScenarioError as exc:
+            msg = str(exc)
+            assert f"mutant{i}.toml" in msg, msg
+            assert len(msg) < 1500, msg[:300]  # a long bad value is quoted by a prefix
+            outcomes["refused"] += 1
+    assert outcomes["parsed"] > 50 and outcomes["refused"] > 500, outcomes
