@@ -75,7 +75,7 @@ impl PyPhotonBeam {
     fn new(
         photon_energy_ev: &Bound<'_, PyAny>,
         flux_cm2_s: &Bound<'_, PyAny>,
-        bandwidth_ev: f64,
+        #[pyo3(from_py_with = super::convert::real::bandwidth_ev)] bandwidth_ev: f64,
     ) -> PyResult<Self> {
         Ok(PyPhotonBeam {
             inner: PhotonBeam::new(
@@ -186,7 +186,8 @@ impl PyPhotonBeam {
     /// element : str or int
     ///     Symbol, name or Z.
     /// charge : int or sequence of int
-    ///     Target charge state(s); with several, their summed fraction is maximised.
+    ///     Target charge state(s), each listed once (a repeat is refused); with several, their
+    ///     summed fraction is maximised.
     /// photon_energies_ev : array_like
     ///     Photon energies (eV) to try; flux and bandwidth held fixed.
     /// times_s : array_like

@@ -276,6 +276,18 @@ pub fn photon_thresholds(
     }
     let sigma = subshell_cross_sections_cm2(&neutral, photon_energy_ev)?;
     let total: f64 = sigma.iter().map(|s| s.cross_section_cm2).sum();
+    if !(total.is_finite() && total > 0.0) && !out.is_empty() {
+        // Far above every edge the cross section falls below the smallest f64: no photon
+        // is absorbed in the model, so there are no yields to share out.
+        return Err(Error::invalid(
+            "photon_energy_ev",
+            photon_energy_ev,
+            &format!(
+                "the photoionization cross section of {} is {total} cm² there (below the                  range of 64-bit floats); use a photon energy nearer the physical range",
+                element.symbol()
+            ),
+        ));
+    }
     let per_charge_cm2 = vacancy_jumps(
         &neutral,
         sigma.iter().map(|s| (s.subshell, s.cross_section_cm2)),
