@@ -12,7 +12,7 @@ use crate::processes::ion_lotz::{
     ionization_cross_sections_cm2, ionization_rate_coefficients_cm3_s, peak_energy_ev,
 };
 use crate::processes::lotz::LotzConstants;
-use crate::sources::breeding::{breeding_ladder, breeding_time_s};
+use crate::sources::breeding::{breeding_ladder, breeding_times_s};
 
 /// A chemical element: ionization energies, ions, isotopes and X-ray levels.
 ///
@@ -350,10 +350,7 @@ fn _breeding_time_s<'py>(
     let current_density_a_cm2 = float_arg("current_density_a_cm2", current_density_a_cm2)?;
     let k = constants(a, b, c)?;
     let out = guard(py, || {
-        energies
-            .iter()
-            .map(|e| breeding_time_s(el, charge, *e, current_density_a_cm2, k))
-            .collect()
+        breeding_times_s(el, charge, &energies, current_density_a_cm2, k)
     })?;
     Ok(to_py(py, out))
 }
