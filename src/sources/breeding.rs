@@ -181,7 +181,10 @@ mod tests {
         let many = breeding_times_s(au, 60, &energies, 250.0, None).unwrap();
         for (e, t) in energies.iter().zip(&many) {
             let one = breeding_time_s(au, 60, *e, 250.0, None).unwrap();
-            assert!(one == *t || (one - t).abs() <= 1e-12 * one, "{e}: {one} vs {t}");
+            assert!(
+                one == *t || (one - t).abs() <= 1e-12 * one,
+                "{e}: {one} vs {t}"
+            );
         }
         // A NaN energy is refused, as it is one at a time.
         assert!(breeding_times_s(au, 60, &[f64::NAN], 1.0, None).is_err());

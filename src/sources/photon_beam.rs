@@ -215,10 +215,17 @@ pub fn photon_network(
     if beam.flux_cm2_s == 0.0 {
         return Ok(net);
     }
-    let jumps: Vec<Result<Vec<(u32, f64)>>> = (0..z)
-        .into_par_iter()
-        .map(|q| beam.jumps_from(element, q))
-        .collect();
+    // Heavy elements take seconds here (a cascade per subshell per charge): poll for Ctrl-C
+    // between charges.
+    let jumps: Vec<Result<Vec<(u32, f64)>>> = crate::interrupt::run_polled(|| {
+        (0..z)
+            .into_par_iter()
+            .map(|q| {
+                crate::interrupt::check()?;
+                beam.jumps_from(element, q)
+            })
+            .collect()
+    });
     for (q, row) in jumps.into_iter().enumerate() {
         for (to, rate) in row? {
             net.add_rate(q, to as usize, rate)?;
