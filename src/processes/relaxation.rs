@@ -85,7 +85,8 @@ const MAX_STATES: usize = 2_000_000;
 /// running the same cascade again (eight threads used to rebuild uranium's eight times).
 pub fn vacancy_relaxation(ion: &Ion, subshell: Subshell) -> Result<Arc<Vec<f64>>> {
     type Cell = Arc<OnceLock<Result<Arc<Vec<f64>>>>>;
-    static CACHE: OnceLock<Mutex<HashMap<(u32, u32, Subshell), Cell>>> = OnceLock::new();
+    type Cache = Mutex<HashMap<(u32, u32, Subshell), Cell>>;
+    static CACHE: OnceLock<Cache> = OnceLock::new();
     let key = (ion.element.z(), ion.charge, subshell);
     let cell: Cell = {
         let mut map = CACHE

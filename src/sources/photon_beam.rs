@@ -283,7 +283,8 @@ pub fn photon_thresholds(
     }
     let sigma = subshell_cross_sections_cm2(&neutral, photon_energy_ev)?;
     let total: f64 = sigma.iter().map(|s| s.cross_section_cm2).sum();
-    if !(total.is_finite() && total > 0.0) && !out.is_empty() {
+    let absorbs = total.is_finite() && total > 0.0;
+    if !absorbs && !out.is_empty() {
         // Far above every edge the cross section falls below the smallest f64: no photon
         // is absorbed in the model, so there are no yields to share out.
         return Err(Error::invalid(

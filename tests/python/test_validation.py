@@ -116,9 +116,7 @@ def test_wide_drift_tube_gives_a_finite_depression() -> None:
     beam = cc.ElectronBeam(8000.0, 0.3, radius_m=70e-6)
     v = beam.space_charge_depression_v(1e308)
     # 1 + 2 ln(b/a) with ln b − ln a; checked against numpy's logs.
-    ratio = (1.0 + 2.0 * (np.log(1e308) - np.log(70e-6))) / (
-        1.0 + 2.0 * (np.log(5e-3) - np.log(70e-6))
-    )
+    ratio = (1.0 + 2.0 * (np.log(1e308) - np.log(70e-6))) / (1.0 + 2.0 * (np.log(5e-3) - np.log(70e-6)))
     assert math.isfinite(v)
     assert v == pytest.approx(beam.space_charge_depression_v(5e-3) * ratio, rel=1e-12)
 
