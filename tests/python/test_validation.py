@@ -136,3 +136,17 @@ def test_lotz_rate_has_its_limits_at_extreme_temperatures() -> None:
 def test_photon_thresholds_far_above_every_edge_is_a_clear_error() -> None:
     with pytest.raises(InvalidParameterError, match="photon_energy_ev"):
         cc.photon_thresholds("Ar", 1.8e308)
+
+
+def test_evolution_on_a_single_time_answers_every_method(trap: cc.BeamTrap) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    evo = trap.evolve("Ar", np.array([0.0]))
+    assert evo.mean_charge()[0] == 0.0
+    assert evo.dominant_charges(0.5) == [0]
+    repr(evo)
+    evo.summary()
+    assert evo.peak(0) == (0.0, 1.0)
+    assert evo.at(0.0)[0] == 1.0
+    evo.plot()
