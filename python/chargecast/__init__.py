@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from chargecast import _core
 from chargecast._core import (
+    ArgumentTypeError,
     ChargecastError,
     ChargeOutOfRangeError,
     InvalidParameterError,
@@ -126,6 +127,7 @@ __all__ = [
     "lotz_cross_section_cm2",
     "lotz_peak_energy_ev",
     "lotz_rate_coefficient_cm3_s",
+    "ArgumentTypeError",
     "ChargecastError",
     "ChargeOutOfRangeError",
     "InvalidParameterError",

@@ -7,20 +7,17 @@ from typing import Any
 
 import numpy as np
 
+from chargecast import _core
 from chargecast._core import InvalidParameterError
 
 
 def as_float_array(name: str, value: Any) -> tuple[np.ndarray, tuple[int, ...]]:
     """Convert ``value`` to a contiguous 1-D float64 array, remembering its shape.
 
-    Raises InvalidParameterError (a ValueError) for anything numpy cannot read as numbers.
+    The rules are the core's: complex, bool, object and non-numeric input raises a
+    TypeError naming ``name``.
     """
-    try:
-        arr = np.asarray(value, dtype=np.float64)
-    except (TypeError, ValueError, OverflowError) as exc:
-        raise InvalidParameterError(
-            f"invalid {name} = {value!r}: must be a number or an array of numbers ({exc})"
-        ) from None
+    arr = _core._as_float_array(name, value)
     return np.ascontiguousarray(arr.ravel()), arr.shape
 
 
@@ -32,22 +29,17 @@ def restore(out: np.ndarray, shape: tuple[int, ...]) -> Any:
 
 
 def as_float(name: str, value: Any) -> float:
-    """A single finite-or-not float (the core checks finiteness and sign)."""
-    if isinstance(value, bool):
-        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a number, not a bool")
-    try:
-        return float(value)
-    except (TypeError, ValueError, OverflowError):
-        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a number") from None
+    """A single real number (int, float or numpy scalar; the core checks range).
+
+    Bools, strings and complex numbers raise a TypeError naming ``name``; an int too large
+    for a float64 raises InvalidParameterError.
+    """
+    return _core._as_float(name, value)
 
 
 def as_int(name: str, value: Any) -> int:
-    """A whole number (charge states and the like)."""
-    if isinstance(value, bool) or not isinstance(value, (int, np.integer)):
-        raise InvalidParameterError(f"invalid {name} = {value!r}: must be a whole number")
-    if not -(2**62) <= int(value) <= 2**62:
-        raise InvalidParameterError(f"invalid {name} = {value!r}: far outside any allowed range")
-    return int(value)
+    """A whole number (int or numpy integer; bools raise a TypeError naming ``name``)."""
+    return _core._as_int(name, value)
 
 
 def as_times(name: str, value: Any) -> np.ndarray:

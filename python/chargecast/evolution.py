@@ -91,6 +91,8 @@ class Evolution(_core.Evolution):
                 color=LINE_COLORS[k % len(LINE_COLORS)],
                 label=f"{q}+",
             )
+            if f.size == 0:  # only t = 0 on the grid: nothing to show on a log axis
+                continue
             i = int(np.argmax(f))
             if f[i] > 0.05:
                 ax.annotate(

@@ -89,8 +89,7 @@ def photoionization_cross_section_cm2(element: ElementLike, charge: int, photon_
     6.3
     """
     e, shape = as_float_array("photon_energies_ev", photon_energies_ev)
-    _, sigma = _core._photoionization_subshells(element, _charge(charge), e)
-    return restore(sigma.sum(axis=1), shape)
+    return restore(_core._photoionization_total(element, _charge(charge), e), shape)
 
 
 def vacancy_relaxation(element: ElementLike, charge: int, subshell: str) -> np.ndarray:

@@ -182,12 +182,22 @@ pub fn lotz_rate_coefficient_cm3_s(shells: &[LotzShell], temperature_ev: f64) ->
         .map(|s| {
             let x = s.binding_ev / kt;
             let k = s.constants;
-            // Both terms carry e^(−x); factor it out so neither underflows separately.
-            let bracket = exp1_scaled(x) / x - k.b * exp1_scaled(x + k.c) / (x + k.c);
-            k.a_cm2_ev2 * s.occupancy * (-x).exp() * bracket
+            // Both terms carry e^(−x); factor it out so neither underflows separately. When
+            // e^(−x) is 0 (kT far below the binding) the shell adds exactly its limit, 0.
+            let boltzmann = (-x).exp();
+            if boltzmann == 0.0 {
+                return 0.0;
+            }
+            // (kT)^(−3/2)·[E₁(x)/x − b e^c E₁(x+c)/(x+c)] written with 1/x = kT/P and
+            // 1/(x+c) = kT/(P + c kT), so that no factor overflows at huge kT (there
+            // E₁(x)/x alone would be inf and the difference NaN).
+            let p = s.binding_ev;
+            let bracket =
+                (exp1_scaled(x) / p - k.b * exp1_scaled(x + k.c) / (p + k.c * kt)) / kt.sqrt();
+            k.a_cm2_ev2 * s.occupancy * boltzmann * bracket
         })
         .sum();
-    Ok(maxwellian_speed_factor_cm_s() * sum / (kt * kt.sqrt()))
+    Ok(maxwellian_speed_factor_cm_s() * sum)
 }
 
 /// [`lotz_rate_coefficient_cm3_s`] at each temperature.
@@ -533,5 +543,24 @@ mod tests {
         assert!(rel(sigma, 6e-17) < 0.2, "{sigma:e}");
         assert_eq!(lotz_fitted_constants(18, 0, 3, 1), None);
         assert_eq!(lotz_fitted_constants(2, 1, 1, 0), None);
+    }
+
+    #[test]
+    fn rate_coefficient_has_its_limits_at_extreme_temperatures() {
+        let shells = [LotzShell {
+            binding_ev: 15.76,
+            occupancy: 6.0,
+            constants: LotzConstants::SIMPLIFIED,
+        }];
+        // kT → 0: e^(−P/kT) → 0 exactly; kT → ∞: ⟨σv⟩ ~ ln(kT)/√kT → 0, finite all the way.
+        for t in [1e-300, 5e-324, 1e-10] {
+            assert_eq!(lotz_rate_coefficient_cm3_s(&shells, t).unwrap(), 0.0, "{t}");
+        }
+        let mut last = f64::INFINITY;
+        for t in [1e10, 1e100, 1e200, 1e308, f64::MAX] {
+            let k = lotz_rate_coefficient_cm3_s(&shells, t).unwrap();
+            assert!(k.is_finite() && k > 0.0 && k < last, "{t}: {k}");
+            last = k;
+        }
     }
 }

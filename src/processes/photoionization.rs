@@ -43,7 +43,7 @@
 
 use crate::atoms::{neutral_photoabsorption, Element, Ion, Subshell};
 use crate::constants::{ALPHA, BOHR_RADIUS_M, RYDBERG_EV};
-use crate::error::{require_positive, Result};
+use crate::error::{require_all_positive, require_positive, Result};
 use crate::processes::kramers::kramers_photoionization_cross_section_cm2;
 
 /// Lowest photon energy (eV) of the embedded photoabsorption table.
@@ -241,6 +241,10 @@ pub fn subshell_cross_sections_cm2(
     let element = ion.element;
     let neutral = element.ion(0)?.subshells();
     let mut out = Vec::with_capacity(ion.subshells().len());
+    // Subshells with the same binding ratio (all of them for the neutral atom) share one
+    // split of the tabulated photoabsorption: compute it once per scaled energy.
+    type Shares = Option<Vec<(Subshell, f64)>>;
+    let mut memo: Option<(f64, Shares)> = None;
     for s in ion.subshells() {
         let mut result = SubshellPhotoionization {
             subshell: s.subshell,
@@ -255,7 +259,10 @@ pub fn subshell_cross_sections_cm2(
             let ratio = n0.binding_ev / s.binding_ev;
             let scaled_ev = photon_energy_ev * ratio;
             if scaled_ev >= TABLE_MIN_EV {
-                if let Some(shares) = neutral_subshell_shares_cm2(element, scaled_ev)? {
+                if memo.as_ref().is_none_or(|(at, _)| *at != scaled_ev) {
+                    memo = Some((scaled_ev, neutral_subshell_shares_cm2(element, scaled_ev)?));
+                }
+                if let Some(shares) = memo.as_ref().and_then(|(_, s)| s.as_ref()) {
                     let share = shares
                         .iter()
                         .find(|(t, _)| *t == s.subshell)
@@ -292,6 +299,28 @@ pub fn photoionization_cross_section_cm2(ion: &Ion, photon_energy_ev: f64) -> Re
         .iter()
         .map(|s| s.cross_section_cm2)
         .sum())
+}
+
+/// [`photoionization_cross_section_cm2`] at each photon energy: the result and nothing of
+/// the size of energies × subshells (refused beyond the memory limit; stops on Ctrl-C).
+pub fn photoionization_cross_sections_cm2(
+    ion: &Ion,
+    photon_energies_ev: &[f64],
+) -> Result<Vec<f64>> {
+    require_all_positive("photon_energies_ev", photon_energies_ev)?;
+    let what = "the photoionization cross sections";
+    crate::limits::check_memory(
+        what,
+        crate::limits::bytes_for(&[photon_energies_ev.len()], 8),
+    )?;
+    let mut out = crate::limits::try_vec(what, photon_energies_ev.len(), 0.0)?;
+    for (o, e) in out.chunks_mut(4096).zip(photon_energies_ev.chunks(4096)) {
+        crate::interrupt::check()?;
+        for (o, &e) in o.iter_mut().zip(e) {
+            *o = photoionization_cross_section_cm2(ion, e)?;
+        }
+    }
+    Ok(out)
 }
 
 #[cfg(test)]
@@ -380,5 +409,26 @@ mod tests {
             "{:e}",
             s[0].cross_section_cm2
         );
+    }
+
+    #[test]
+    fn totals_at_many_energies_equal_the_subshell_sums() {
+        for (sym, q) in [("U", 0), ("U", 40), ("Ar", 3)] {
+            let ion = element(sym).unwrap().ion(q).unwrap();
+            let energies = [20.0, 150.0, 3.2e3, 1.2e5];
+            let many = photoionization_cross_sections_cm2(&ion, &energies).unwrap();
+            for (e, v) in energies.iter().zip(&many) {
+                let sum: f64 = subshell_cross_sections_cm2(&ion, *e)
+                    .unwrap()
+                    .iter()
+                    .map(|s| s.cross_section_cm2)
+                    .sum();
+                assert_eq!(*v, sum, "{sym}{q}+ at {e} eV");
+            }
+            // 120 keV lies above every edge of these ions.
+            assert!(many[3] > 0.0, "{sym}{q}+");
+        }
+        let ar = element("Ar").unwrap().ion(0).unwrap();
+        assert!(photoionization_cross_sections_cm2(&ar, &[1.0, -1.0]).is_err());
     }
 }

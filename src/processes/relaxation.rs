@@ -79,23 +79,30 @@ const MAX_STATES: usize = 2_000_000;
 
 /// Probabilities P(k) of k = 0, 1, 2 … extra electrons after a vacancy is made in
 /// `subshell` of `ion` (charge q): the final charge is q + 1 + k. Sums to 1.
+///
+/// Each (element, charge, subshell) cascade runs once per process: the cache holds one
+/// cell per key, and threads that ask for a key being computed wait for it instead of
+/// running the same cascade again (eight threads used to rebuild uranium's eight times).
 pub fn vacancy_relaxation(ion: &Ion, subshell: Subshell) -> Result<Arc<Vec<f64>>> {
-    type Cache = Mutex<HashMap<(u32, u32, Subshell), Arc<Vec<f64>>>>;
+    type Cell = Arc<OnceLock<Result<Arc<Vec<f64>>>>>;
+    type Cache = Mutex<HashMap<(u32, u32, Subshell), Cell>>;
     static CACHE: OnceLock<Cache> = OnceLock::new();
     let key = (ion.element.z(), ion.charge, subshell);
-    let cache = CACHE.get_or_init(|| Mutex::new(HashMap::new()));
-    if let Some(hit) = cache.lock().ok().and_then(|c| c.get(&key).cloned()) {
-        return Ok(hit);
-    }
-    let cascade = Cascade::new(ion)?;
-    let start = cascade
-        .index(subshell)
-        .ok_or_else(|| not_occupied(ion, subshell))?;
-    let yields = Arc::new(cascade.run(start));
-    if let Ok(mut c) = cache.lock() {
-        c.insert(key, Arc::clone(&yields));
-    }
-    Ok(yields)
+    let cell: Cell = {
+        let mut map = CACHE
+            .get_or_init(|| Mutex::new(HashMap::new()))
+            .lock()
+            .unwrap_or_else(|p| p.into_inner());
+        Arc::clone(map.entry(key).or_default())
+    };
+    cell.get_or_init(|| {
+        let cascade = Cascade::new(ion)?;
+        let start = cascade
+            .index(subshell)
+            .ok_or_else(|| not_occupied(ion, subshell))?;
+        Ok(Arc::new(cascade.run(start)))
+    })
+    .clone()
 }
 
 /// Largest number of extra electrons energy allows after a vacancy in `subshell` of `ion`:
@@ -441,19 +448,25 @@ impl Cascade {
         let s_h = self.subshells[h];
         let b_h = self.reference_ev[h];
         let mut out = Vec::new();
-        let push = |added: &[usize], rate: f64, out: &mut Vec<(Vec<u8>, f64)>| {
+        // Candidates are tried in one scratch state and copied only when allowed: most are
+        // refused, and allocating each one was a fifth of a heavy element's cascade time.
+        let mut scratch = holes.to_vec();
+        let mut push = |added: &[usize], rate: f64, out: &mut Vec<(Vec<u8>, f64)>| {
             if rate.is_nan() || rate <= 0.0 {
                 return;
             }
-            let mut next = holes.to_vec();
-            next[h] -= 1;
+            scratch[h] -= 1;
             for &a in added {
-                next[a] += 1;
+                scratch[a] += 1;
             }
-            if added.iter().all(|&a| next[a] <= self.occupancy[a] as u8)
-                && self.energy(&next) <= e_now + ENERGY_TOL_EV
+            if added.iter().all(|&a| scratch[a] <= self.occupancy[a] as u8)
+                && self.energy(&scratch) <= e_now + ENERGY_TOL_EV
             {
-                out.push((next, rate));
+                out.push((scratch.clone(), rate));
+            }
+            scratch[h] += 1;
+            for &a in added {
+                scratch[a] -= 1;
             }
         };
         let n = self.subshells.len();

@@ -1,18 +1,18 @@
 //! Bindings of the atoms layer and of electron-impact ionization: elements, ions,
 //! Lotz cross sections and rate coefficients, stepwise breeding.
 
-use numpy::{PyArray1, PyReadonlyArray1};
+use numpy::PyArray1;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
-use super::convert::int_arg;
-use super::{element_arg, guard, to_py, vec_arg};
+use super::convert::{array1_arg, float_arg, int_arg, opt_float_arg};
+use super::{element_arg, guard, to_py};
 use crate::atoms::{Element, Ion};
 use crate::processes::ion_lotz::{
     ionization_cross_sections_cm2, ionization_rate_coefficients_cm3_s, peak_energy_ev,
 };
 use crate::processes::lotz::LotzConstants;
-use crate::sources::breeding::{breeding_ladder, breeding_time_s};
+use crate::sources::breeding::{breeding_ladder, breeding_times_s};
 
 /// A chemical element: ionization energies, ions, isotopes and X-ray levels.
 ///
@@ -253,16 +253,22 @@ fn element(value: &Bound<'_, PyAny>) -> PyResult<PyElement> {
     })
 }
 
-fn constants(a: Option<f64>, b: Option<f64>, c: Option<f64>) -> Option<LotzConstants> {
+type Arg<'a, 'py> = Option<&'a Bound<'py, PyAny>>;
+
+/// Lotz constants given by the caller (None when all three are left out).
+fn constants(a: Arg, b: Arg, c: Arg) -> PyResult<Option<LotzConstants>> {
+    let a = opt_float_arg("a", a)?;
+    let b = opt_float_arg("b", b)?;
+    let c = opt_float_arg("c", c)?;
     if a.is_none() && b.is_none() && c.is_none() {
-        return None;
+        return Ok(None);
     }
     let d = LotzConstants::SIMPLIFIED;
-    Some(LotzConstants {
+    Ok(Some(LotzConstants {
         a_cm2_ev2: a.unwrap_or(d.a_cm2_ev2),
         b: b.unwrap_or(d.b),
         c: c.unwrap_or(d.c),
-    })
+    }))
 }
 
 #[pyfunction]
@@ -270,16 +276,18 @@ fn constants(a: Option<f64>, b: Option<f64>, c: Option<f64>) -> Option<LotzConst
 fn lotz_cross_section_cm2<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
-    charge: i64,
-    energies_ev: PyReadonlyArray1<'py, f64>,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
+    charge: &Bound<'py, PyAny>,
+    energies_ev: &Bound<'py, PyAny>,
+    a: Arg<'_, 'py>,
+    b: Arg<'_, 'py>,
+    c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let energies = vec_arg(&energies_ev);
+    let energies = array1_arg("energies_ev", energies_ev)?;
+    let charge = int_arg("charge", charge)?;
+    let k = constants(a, b, c)?;
     let out = guard(py, || {
-        ionization_cross_sections_cm2(el, charge, &energies, constants(a, b, c))
+        ionization_cross_sections_cm2(el, charge, &energies, k)
     })?;
     Ok(to_py(py, out))
 }
@@ -289,33 +297,36 @@ fn lotz_cross_section_cm2<'py>(
 fn lotz_rate_coefficient_cm3_s<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
-    charge: i64,
-    temperatures_ev: PyReadonlyArray1<'py, f64>,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
+    charge: &Bound<'py, PyAny>,
+    temperatures_ev: &Bound<'py, PyAny>,
+    a: Arg<'_, 'py>,
+    b: Arg<'_, 'py>,
+    c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let temps = vec_arg(&temperatures_ev);
+    let temps = array1_arg("temperatures_ev", temperatures_ev)?;
+    let charge = int_arg("charge", charge)?;
+    let k = constants(a, b, c)?;
     let out = guard(py, || {
-        ionization_rate_coefficients_cm3_s(el, charge, &temps, constants(a, b, c))
+        ionization_rate_coefficients_cm3_s(el, charge, &temps, k)
     })?;
     Ok(to_py(py, out))
 }
 
 #[pyfunction]
 #[pyo3(signature = (element, charge, a=None, b=None, c=None))]
-fn lotz_peak_energy_ev(
-    element: &Bound<'_, PyAny>,
-    charge: i64,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
+fn lotz_peak_energy_ev<'py>(
+    element: &Bound<'py, PyAny>,
+    charge: &Bound<'py, PyAny>,
+    a: Arg<'_, 'py>,
+    b: Arg<'_, 'py>,
+    c: Arg<'_, 'py>,
 ) -> PyResult<f64> {
+    let k = constants(a, b, c)?;
     Ok(peak_energy_ev(
         element_arg(element)?,
-        charge,
-        constants(a, b, c),
+        int_arg("charge", charge)?,
+        k,
     )?)
 }
 
@@ -326,21 +337,20 @@ fn lotz_peak_energy_ev(
 fn _breeding_time_s<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
-    charge: i64,
-    energies_ev: PyReadonlyArray1<'py, f64>,
-    current_density_a_cm2: f64,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
+    charge: &Bound<'py, PyAny>,
+    energies_ev: &Bound<'py, PyAny>,
+    current_density_a_cm2: &Bound<'py, PyAny>,
+    a: Arg<'_, 'py>,
+    b: Arg<'_, 'py>,
+    c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
     let el = element_arg(element)?;
-    let energies = vec_arg(&energies_ev);
-    let k = constants(a, b, c);
+    let energies = array1_arg("energies_ev", energies_ev)?;
+    let charge = int_arg("charge", charge)?;
+    let current_density_a_cm2 = float_arg("current_density_a_cm2", current_density_a_cm2)?;
+    let k = constants(a, b, c)?;
     let out = guard(py, || {
-        energies
-            .iter()
-            .map(|e| breeding_time_s(el, charge, *e, current_density_a_cm2, k))
-            .collect()
+        breeding_times_s(el, charge, &energies, current_density_a_cm2, k)
     })?;
     Ok(to_py(py, out))
 }
@@ -352,15 +362,18 @@ fn _breeding_time_s<'py>(
 fn _breeding_ladder<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
-    charge: i64,
-    energy_ev: f64,
-    current_density_a_cm2: f64,
-    a: Option<f64>,
-    b: Option<f64>,
-    c: Option<f64>,
+    charge: &Bound<'py, PyAny>,
+    energy_ev: &Bound<'py, PyAny>,
+    current_density_a_cm2: &Bound<'py, PyAny>,
+    a: Arg<'_, 'py>,
+    b: Arg<'_, 'py>,
+    c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let el = element_arg(element)?;
-    let k = constants(a, b, c);
+    let charge = int_arg("charge", charge)?;
+    let energy_ev = float_arg("energy_ev", energy_ev)?;
+    let current_density_a_cm2 = float_arg("current_density_a_cm2", current_density_a_cm2)?;
+    let k = constants(a, b, c)?;
     let steps = guard(py, || {
         breeding_ladder(el, charge, energy_ev, current_density_a_cm2, k)
     })?;

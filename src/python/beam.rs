@@ -4,10 +4,9 @@
 use pyo3::prelude::*;
 
 use super::convert::{float_arg, opt_float_arg};
-use crate::error::Error;
 use crate::sources::electron_beam::{
-    brillouin_radius_m, effective_energy_ev, electron_speed_m_s, electrons_in_trap,
-    space_charge_depression_v, BeamSize, ElectronBeam,
+    checked_brillouin_radius_m, effective_energy_ev, electron_speed_m_s, electrons_in_trap,
+    BeamSize, ElectronBeam,
 };
 
 /// A uniform electron beam.
@@ -95,21 +94,7 @@ impl PyElectronBeam {
     /// Space-charge potential depression axis-to-wall (V) in a drift tube of radius (m).
     fn space_charge_depression_v(&self, drift_tube_radius_m: &Bound<'_, PyAny>) -> PyResult<f64> {
         let drift_tube_radius_m = float_arg("drift_tube_radius_m", drift_tube_radius_m)?;
-        crate::error::require_positive("drift_tube_radius_m", drift_tube_radius_m)?;
-        if drift_tube_radius_m < self.inner.radius_m {
-            return Err(Error::invalid(
-                "drift_tube_radius_m",
-                drift_tube_radius_m,
-                "must be >= the beam radius",
-            )
-            .into());
-        }
-        Ok(space_charge_depression_v(
-            self.inner.current_a,
-            self.inner.energy_ev,
-            self.inner.radius_m,
-            drift_tube_radius_m,
-        ))
+        Ok(self.inner.depression_in_tube_v(drift_tube_radius_m)?)
     }
     fn __repr__(&self) -> String {
         self.repr()
@@ -125,60 +110,67 @@ impl PyElectronBeam {
     }
 }
 
+type Arg<'a, 'py> = &'a Bound<'py, PyAny>;
+
 #[pyfunction]
-fn _electron_speed_m_s(energy_ev: f64) -> PyResult<f64> {
+fn _electron_speed_m_s(energy_ev: Arg) -> PyResult<f64> {
+    let energy_ev = float_arg("energy_ev", energy_ev)?;
     crate::error::require_positive("energy_ev", energy_ev)?;
     Ok(electron_speed_m_s(energy_ev))
 }
 
 #[pyfunction]
-fn _brillouin_radius_m(current_a: f64, energy_ev: f64, magnetic_field_t: f64) -> PyResult<f64> {
-    crate::error::require_positive("current_a", current_a)?;
-    crate::error::require_positive("energy_ev", energy_ev)?;
-    crate::error::require_positive("magnetic_field_t", magnetic_field_t)?;
-    Ok(brillouin_radius_m(current_a, energy_ev, magnetic_field_t))
+fn _brillouin_radius_m(current_a: Arg, energy_ev: Arg, magnetic_field_t: Arg) -> PyResult<f64> {
+    Ok(checked_brillouin_radius_m(
+        float_arg("current_a", current_a)?,
+        float_arg("energy_ev", energy_ev)?,
+        float_arg("magnetic_field_t", magnetic_field_t)?,
+    )?)
 }
 
 #[pyfunction]
 fn _herrmann_radius_m(
-    current_a: f64,
-    energy_ev: f64,
-    magnetic_field_t: f64,
-    cathode_radius_m: f64,
-    cathode_temperature_k: f64,
-    cathode_field_t: f64,
+    current_a: Arg,
+    energy_ev: Arg,
+    magnetic_field_t: Arg,
+    cathode_radius_m: Arg,
+    cathode_temperature_k: Arg,
+    cathode_field_t: Arg,
 ) -> PyResult<f64> {
     // with_herrmann validates every input before the radius is computed.
     let beam = ElectronBeam::with_herrmann(
-        energy_ev,
-        current_a,
-        magnetic_field_t,
-        cathode_radius_m,
-        cathode_temperature_k,
-        cathode_field_t,
+        float_arg("energy_ev", energy_ev)?,
+        float_arg("current_a", current_a)?,
+        float_arg("magnetic_field_t", magnetic_field_t)?,
+        float_arg("cathode_radius_m", cathode_radius_m)?,
+        float_arg("cathode_temperature_k", cathode_temperature_k)?,
+        float_arg("cathode_field_t", cathode_field_t)?,
     )?;
     Ok(beam.radius_m)
 }
 
 #[pyfunction]
 fn _effective_energy_ev(
-    tube_to_cathode_v: f64,
-    current_a: f64,
-    beam_radius_m: f64,
-    drift_tube_radius_m: f64,
-    compensation: f64,
+    tube_to_cathode_v: Arg,
+    current_a: Arg,
+    beam_radius_m: Arg,
+    drift_tube_radius_m: Arg,
+    compensation: Arg,
 ) -> PyResult<f64> {
     Ok(effective_energy_ev(
-        tube_to_cathode_v,
-        current_a,
-        beam_radius_m,
-        drift_tube_radius_m,
-        compensation,
+        float_arg("tube_to_cathode_v", tube_to_cathode_v)?,
+        float_arg("current_a", current_a)?,
+        float_arg("beam_radius_m", beam_radius_m)?,
+        float_arg("drift_tube_radius_m", drift_tube_radius_m)?,
+        float_arg("compensation", compensation)?,
     )?)
 }
 
 #[pyfunction]
-fn _electrons_in_trap(current_a: f64, energy_ev: f64, length_m: f64) -> PyResult<f64> {
+fn _electrons_in_trap(current_a: Arg, energy_ev: Arg, length_m: Arg) -> PyResult<f64> {
+    let current_a = float_arg("current_a", current_a)?;
+    let energy_ev = float_arg("energy_ev", energy_ev)?;
+    let length_m = float_arg("length_m", length_m)?;
     crate::error::require_positive("current_a", current_a)?;
     crate::error::require_positive("energy_ev", energy_ev)?;
     crate::error::require_positive("length_m", length_m)?;

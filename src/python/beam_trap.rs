@@ -177,9 +177,9 @@ impl PyBeamTrap {
         beam: &Bound<'_, PyAny>,
         length_m: &Bound<'_, PyAny>,
         residual_gas_pa: Option<&Bound<'_, PyAny>>,
-        ion_temperature_ev: f64,
-        gas_temperature_k: f64,
-        compensation: f64,
+        #[pyo3(from_py_with = super::convert::real::ion_temperature_ev)] ion_temperature_ev: f64,
+        #[pyo3(from_py_with = super::convert::real::gas_temperature_k)] gas_temperature_k: f64,
+        #[pyo3(from_py_with = super::convert::real::compensation)] compensation: f64,
         loss_per_s: Option<&Bound<'_, PyAny>>,
         feed: Option<&Bound<'_, PyAny>>,
         processes: Option<&Bound<'_, PyAny>>,
@@ -382,7 +382,8 @@ impl PyBeamTrap {
     /// element : str or int
     ///     Symbol, name or Z.
     /// charge : int or sequence of int
-    ///     Target charge state(s); with several, their summed fraction is maximised.
+    ///     Target charge state(s), each listed once (a repeat is refused); with several, their
+    ///     summed fraction is maximised.
     /// energies_ev : array_like
     ///     Electron energies (eV) to try; current density held fixed.
     /// times_s : array_like

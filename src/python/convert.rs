@@ -7,7 +7,7 @@ use std::time::{Duration, Instant};
 
 use numpy::{IntoPyArray, PyArray1, PyArray2, PyReadonlyArray1};
 use pyo3::prelude::*;
-use pyo3::types::{PyBool, PyInt, PyString};
+use pyo3::types::{PyBool, PyFloat, PyInt, PyString};
 
 use super::errors::ChargecastError;
 use crate::atoms::{element, element_by_z, Element};
@@ -16,12 +16,20 @@ use crate::interrupt;
 
 /// An element from a Python str (symbol, name or digits) or int (Z).
 pub(crate) fn element_arg(value: &Bound<'_, PyAny>) -> Result<&'static Element> {
-    if value.is_instance_of::<PyBool>() {
+    if is_bool(value) {
         return Err(bad_element(value));
     }
     if value.is_instance_of::<PyInt>() {
         let z: i64 = value.extract().map_err(|_| bad_element(value))?;
         return element_by_z(z);
+    }
+    // numpy integers (np.int64(18)) are atomic numbers too.
+    if !value.is_instance_of::<PyString>() {
+        if let Ok(z) = value.call_method0("__index__") {
+            if z.is_instance_of::<PyInt>() {
+                return element_arg(&z);
+            }
+        }
     }
     if value.is_instance_of::<PyString>() {
         let s: String = value.extract().map_err(|_| bad_element(value))?;
@@ -32,10 +40,7 @@ pub(crate) fn element_arg(value: &Bound<'_, PyAny>) -> Result<&'static Element> 
 
 fn bad_element(value: &Bound<'_, PyAny>) -> Error {
     Error::UnknownElement {
-        given: value
-            .repr()
-            .map(|r| r.to_string())
-            .unwrap_or_else(|_| "?".into()),
+        given: shown(value),
         max_z: 118,
     }
 }
@@ -98,77 +103,138 @@ pub(crate) fn vec_arg(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
     a.as_array().iter().copied().collect()
 }
 
-/// A whole number from Python (bool and non-integers rejected with a clear message).
-pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<i64> {
-    // numpy integers are whole numbers too: they convert through __index__.
-    if !value.is_instance_of::<PyBool>() && !value.is_instance_of::<PyInt>() {
-        if let Ok(index) = value.call_method0("__index__") {
-            if index.is_instance_of::<PyInt>() {
-                return int_arg(name, &index);
-            }
-        }
+/// A short repr of a Python value for messages (long values are cut to a prefix).
+pub(crate) fn shown(value: &Bound<'_, PyAny>) -> String {
+    let r = value
+        .repr()
+        .map(|r| r.to_string())
+        .unwrap_or_else(|_| "?".into());
+    if r.chars().count() > 60 {
+        let head: String = r.chars().take(60).collect();
+        format!("{head}...")
+    } else {
+        r
     }
-    if value.is_instance_of::<PyBool>() || !value.is_instance_of::<PyInt>() {
-        let shown = value
-            .repr()
-            .map(|r| r.to_string())
-            .unwrap_or_else(|_| "?".into());
-        return Err(Error::invalid(name, shown, "must be a whole number (int)"));
-    }
-    value
-        .extract::<i64>()
-        .map_err(|_| Error::invalid(name, value, "must fit in a 64-bit integer"))
 }
 
-/// A real number from Python (int or float; bool, str and others rejected clearly).
-pub(crate) fn float_arg(name: &str, value: &Bound<'_, PyAny>) -> Result<f64> {
-    if value.is_instance_of::<PyBool>() || value.is_instance_of::<PyString>() {
-        let shown = value
-            .repr()
-            .map(|r| r.to_string())
-            .unwrap_or_else(|_| "?".into());
-        return Err(Error::invalid(name, shown, "must be a number"));
+/// The `TypeError` for a value of the wrong kind, naming the parameter and what it must be.
+fn wrong_type(name: &str, value: &Bound<'_, PyAny>, wanted: &str) -> PyErr {
+    super::errors::argument_type_error(format!(
+        "invalid {name} = {}: must be {wanted}, not {}",
+        shown(value),
+        type_name(value)
+    ))
+}
+
+/// Whether `value` is a bool (Python's or numpy's): bools are not numbers here.
+fn is_bool(value: &Bound<'_, PyAny>) -> bool {
+    value.is_instance_of::<PyBool>() || type_name(value) == "bool" || type_name(value) == "bool_"
+}
+
+/// A whole number from Python: int or a numpy integer (through `__index__`). Bools and
+/// non-integers give a `TypeError` naming the parameter; integers beyond 64 bits an
+/// `InvalidParameterError`.
+pub(crate) fn int_arg(name: &str, value: &Bound<'_, PyAny>) -> PyResult<i64> {
+    if is_bool(value) {
+        return Err(wrong_type(name, value, "a whole number (int)"));
     }
-    value.extract::<f64>().map_err(|_| {
-        let shown = value
-            .repr()
-            .map(|r| r.to_string())
-            .unwrap_or_else(|_| "?".into());
-        Error::invalid(name, shown, "must be a number")
-    })
+    let int = if value.is_instance_of::<PyInt>() {
+        value.clone()
+    } else {
+        match value.call_method0("__index__") {
+            Ok(i) if i.is_instance_of::<PyInt>() => i,
+            _ => return Err(wrong_type(name, value, "a whole number (int)")),
+        }
+    };
+    int.extract::<i64>()
+        .map_err(|_| Error::invalid(name, shown(value), "must fit in a 64-bit integer").into())
+}
+
+/// A real number from Python: int, float or a numpy real scalar. Bools, strings, complex
+/// numbers and other objects give a `TypeError` naming the parameter; an integer too large
+/// for a float64 gives an `InvalidParameterError`. Range checks stay in the core.
+pub(crate) fn float_arg(name: &str, value: &Bound<'_, PyAny>) -> PyResult<f64> {
+    if is_bool(value) {
+        return Err(wrong_type(name, value, "a real number (int or float)"));
+    }
+    if value.is_instance_of::<PyFloat>() {
+        return value.extract::<f64>();
+    }
+    if value.is_instance_of::<PyInt>() {
+        return value.extract::<f64>().map_err(|_| {
+            Error::invalid(
+                name,
+                shown(value),
+                "is too large for a 64-bit float (magnitude at most 1.8e308)",
+            )
+            .into()
+        });
+    }
+    // numpy scalars (np.float32, np.int64, ...) register as numbers.Real; complex ones do not.
+    let py = value.py();
+    let real = py.import("numbers")?.getattr("Real")?;
+    if value.is_instance(&real)? {
+        if value.hasattr("__index__")? {
+            let i = value.call_method0("__index__")?;
+            return float_arg(name, &i);
+        }
+        return value
+            .call_method0("__float__")
+            .and_then(|f| f.extract::<f64>())
+            .map_err(|_| wrong_type(name, value, "a real number (int or float)"));
+    }
+    Err(wrong_type(name, value, "a real number (int or float)"))
 }
 
 /// An optional real number (None stays None).
-pub(crate) fn opt_float_arg(name: &str, value: Option<&Bound<'_, PyAny>>) -> Result<Option<f64>> {
+pub(crate) fn opt_float_arg(name: &str, value: Option<&Bound<'_, PyAny>>) -> PyResult<Option<f64>> {
     match value {
         Some(v) if !v.is_none() => float_arg(name, v).map(Some),
         _ => Ok(None),
     }
 }
 
-/// Target charges from Python, each checked against the element (0…Z).
+/// Target charges from Python, each checked against the element (0…Z) and each given once:
+/// a charge listed twice would be counted twice in the summed fraction a scan maximises.
 pub(crate) fn charges_arg(element: &Element, charges: &[i64]) -> Result<Vec<u32>> {
-    charges
-        .iter()
-        .map(|q| element.check_charge(*q, element.z()).map(|_| *q as u32))
-        .collect()
+    let mut out: Vec<u32> = Vec::with_capacity(charges.len());
+    for q in charges {
+        element.check_charge(*q, element.z())?;
+        let q = *q as u32;
+        if out.contains(&q) {
+            return Err(Error::invalid(
+                "charge",
+                q,
+                "is given more than once; list each target charge once",
+            ));
+        }
+        out.push(q);
+    }
+    Ok(out)
 }
 
-/// Any array-like of numbers as a C-contiguous float64 numpy array (numpy does the reading).
+/// Any array-like of real numbers as a C-contiguous float64 numpy array of its own shape. Complex, bool,
+/// object and non-numeric arrays are refused with a `TypeError` naming the parameter (numpy
+/// would cast complex to real with only a warning, and read objects one by one).
 fn float_ndarray<'py>(name: &str, value: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyAny>> {
     let py = value.py();
     let np = py.import("numpy")?;
+    let not_numbers = || wrong_type(name, value, "an array of real numbers");
+    let arr = np
+        .getattr("asarray")?
+        .call1((value,))
+        .map_err(|_| not_numbers())?;
+    let kind: String = arr.getattr("dtype")?.getattr("kind")?.extract()?;
+    if !matches!(kind.as_str(), "i" | "u" | "f") {
+        return Err(not_numbers());
+    }
+    // asarray keeps the shape (a scalar stays 0-d, unlike ascontiguousarray).
     let kwargs = pyo3::types::PyDict::new(py);
     kwargs.set_item("dtype", "float64")?;
-    np.getattr("ascontiguousarray")?
-        .call((value,), Some(&kwargs))
-        .map_err(|_| {
-            let shown = value
-                .repr()
-                .map(|r| r.to_string())
-                .unwrap_or_else(|_| "?".into());
-            Error::invalid(name, shown, "must be an array of numbers").into()
-        })
+    kwargs.set_item("order", "C")?;
+    np.getattr("asarray")?
+        .call((arr,), Some(&kwargs))
+        .map_err(|_| not_numbers())
 }
 
 /// A 1-D array of numbers from any array-like (a scalar gives one value).
@@ -231,7 +297,7 @@ pub(crate) fn fmt_g(x: f64, sig: usize) -> String {
     }
 }
 
-/// Output times (s) from any 1-D array-like (the core checks order and sign).
+/// Output times (s) from any 1-D, non-empty array-like (the core checks order and sign).
 pub(crate) fn times_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
     let arr = float_ndarray("times_s", value)?;
     let ndim: usize = arr.getattr("ndim")?.extract()?;
@@ -244,7 +310,14 @@ pub(crate) fn times_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
         )
         .into());
     }
-    array1_arg("times_s", &arr)
+    let times = array1_arg("times_s", &arr)?;
+    if times.is_empty() {
+        // An evolution over no times has no answer to give (and nothing to plot or read).
+        return Err(
+            Error::invalid("times_s", "[] (empty)", "give at least one output time").into(),
+        );
+    }
+    Ok(times)
 }
 
 /// One target charge state or a sequence of them.
@@ -253,10 +326,7 @@ pub(crate) fn charge_list_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<i64>> {
         || value.is_instance_of::<pyo3::types::PyTuple>()
         || value.hasattr("ndim")?
     {
-        value
-            .try_iter()?
-            .map(|q| Ok(int_arg("charge", &q?)?))
-            .collect()
+        value.try_iter()?.map(|q| int_arg("charge", &q?)).collect()
     } else {
         Ok(vec![int_arg("charge", value)?])
     }
@@ -269,6 +339,52 @@ pub(crate) fn type_name(value: &Bound<'_, PyAny>) -> String {
         .name()
         .map(|n| n.to_string())
         .unwrap_or_else(|_| "?".into())
+}
+
+/// Named real-number extractors for `#[pyo3(from_py_with = ...)]`, so that keyword
+/// arguments with a numeric default follow the rules of [`float_arg`] under their own name.
+macro_rules! real_args {
+    ($($name:ident),* $(,)?) => {
+        pub(crate) mod real {
+            use pyo3::prelude::*;
+            $(
+                pub(crate) fn $name(value: &Bound<'_, PyAny>) -> PyResult<f64> {
+                    super::float_arg(stringify!($name), value)
+                }
+            )*
+        }
+    };
+}
+real_args!(
+    energy_spread_ev,
+    bandwidth_ev,
+    ion_temperature_ev,
+    gas_temperature_k,
+    compensation,
+);
+
+/// The Python layer's own conversions go through the same rules (one definition of each).
+#[pyfunction]
+fn _as_float(name: &str, value: &Bound<'_, PyAny>) -> PyResult<f64> {
+    float_arg(name, value)
+}
+
+#[pyfunction]
+fn _as_int(name: &str, value: &Bound<'_, PyAny>) -> PyResult<i64> {
+    int_arg(name, value)
+}
+
+/// Any array-like of real numbers as a float64 array of the same shape.
+#[pyfunction]
+fn _as_float_array<'py>(name: &str, value: &Bound<'py, PyAny>) -> PyResult<Bound<'py, PyAny>> {
+    float_ndarray(name, value)
+}
+
+pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_function(wrap_pyfunction!(_as_float, m)?)?;
+    m.add_function(wrap_pyfunction!(_as_int, m)?)?;
+    m.add_function(wrap_pyfunction!(_as_float_array, m)?)?;
+    Ok(())
 }
 
 #[cfg(test)]

@@ -43,7 +43,10 @@ pub(crate) struct PyElectronImpactSource {
 impl PyElectronImpactSource {
     #[new]
     #[pyo3(signature = (energy_ev, *, energy_spread_ev=0.0))]
-    fn new(energy_ev: &Bound<'_, PyAny>, energy_spread_ev: f64) -> PyResult<Self> {
+    fn new(
+        energy_ev: &Bound<'_, PyAny>,
+        #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
+    ) -> PyResult<Self> {
         Ok(PyElectronImpactSource {
             inner: ElectronImpactSource::new(float_arg("energy_ev", energy_ev)?, energy_spread_ev)?,
         })
@@ -408,7 +411,7 @@ fn appearance_curves_py<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     energies_ev: &Bound<'py, PyAny>,
-    energy_spread_ev: f64,
+    #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
 ) -> PyResult<Bound<'py, PyAny>> {
     curves(py, element, energies_ev, energy_spread_ev)
 }

@@ -2,8 +2,10 @@
 //! `ChargecastError`, itself a `ValueError` (bad input is a value problem).
 
 use pyo3::create_exception;
-use pyo3::exceptions::{PyKeyboardInterrupt, PyValueError};
+use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyValueError};
 use pyo3::prelude::*;
+use pyo3::sync::PyOnceLock;
+use pyo3::types::{PyDict, PyTuple, PyType};
 
 use crate::error::Error;
 
@@ -50,6 +52,43 @@ create_exception!(
     "A scenario file that cannot be read or breaks the schema."
 );
 
+/// `ArgumentTypeError(InvalidParameterError, TypeError)`: an argument of the wrong kind (a
+/// bool, str, complex number or object where a number is needed). It is a `TypeError`, as
+/// Python code expects of a wrong type, and a `ChargecastError`, as every error of this
+/// package is. Built once at import (two bases need a Python-level class).
+static ARGUMENT_TYPE_ERROR: PyOnceLock<Py<PyType>> = PyOnceLock::new();
+
+fn argument_type_error_class(py: Python<'_>) -> PyResult<&Py<PyType>> {
+    ARGUMENT_TYPE_ERROR.get_or_try_init(py, || {
+        let bases = PyTuple::new(
+            py,
+            [
+                py.get_type::<InvalidParameterError>().into_any(),
+                py.get_type::<PyTypeError>().into_any(),
+            ],
+        )?;
+        let ns = PyDict::new(py);
+        ns.set_item("__module__", "chargecast")?;
+        ns.set_item(
+            "__doc__",
+            "An argument of the wrong type (bool, str, complex or object where a number is \
+             needed): both a TypeError and an InvalidParameterError.",
+        )?;
+        let cls = py
+            .get_type::<PyType>()
+            .call1(("ArgumentTypeError", bases, ns))?;
+        Ok(cls.cast_into::<PyType>()?.unbind())
+    })
+}
+
+/// The `ArgumentTypeError` with message `msg`.
+pub(crate) fn argument_type_error(msg: String) -> PyErr {
+    Python::attach(|py| match argument_type_error_class(py) {
+        Ok(cls) => PyErr::from_type(cls.bind(py).clone(), msg),
+        Err(e) => e,
+    })
+}
+
 /// The Python exception for a core error.
 pub(crate) fn to_py_err(err: Error) -> PyErr {
     let msg = err.to_string();
@@ -90,5 +129,9 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     )?;
     m.add("UnknownGasError", py.get_type::<UnknownGasError>())?;
     m.add("ScenarioError", py.get_type::<ScenarioError>())?;
+    m.add(
+        "ArgumentTypeError",
+        argument_type_error_class(py)?.clone_ref(py),
+    )?;
     Ok(())
 }

@@ -5,7 +5,7 @@ use numpy::{PyArray1, PyArray2};
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
-use super::convert::{array1_arg, array2_arg, element_arg, float_arg, int_arg};
+use super::convert::{array2_arg, element_arg, float_arg, int_arg, times_arg};
 use super::{matrix_to_py, to_py};
 use crate::atoms::Element;
 use crate::error::Error;
@@ -93,7 +93,7 @@ impl PyEvolution {
             }
         };
         let element = element_arg(element)?;
-        let times_s = array1_arg("times_s", times_s)?;
+        let times_s = times_arg(times_s)?;
         let fractions = array2_arg("fractions", fractions)?;
         if fractions.nrows() != times_s.len() || fractions.ncols() == 0 {
             return Err(Error::invalid(

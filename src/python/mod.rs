@@ -26,6 +26,7 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     // The version is written once, in Cargo.toml; the Python package reads it from here.
     m.add("__version__", env!("CARGO_PKG_VERSION"))?;
     errors::register(m)?;
+    convert::register(m)?;
     atoms::register(m)?;
     results::register(m)?;
     beam::register(m)?;

@@ -75,7 +75,7 @@ impl PyPhotonBeam {
     fn new(
         photon_energy_ev: &Bound<'_, PyAny>,
         flux_cm2_s: &Bound<'_, PyAny>,
-        bandwidth_ev: f64,
+        #[pyo3(from_py_with = super::convert::real::bandwidth_ev)] bandwidth_ev: f64,
     ) -> PyResult<Self> {
         Ok(PyPhotonBeam {
             inner: PhotonBeam::new(
@@ -186,7 +186,8 @@ impl PyPhotonBeam {
     /// element : str or int
     ///     Symbol, name or Z.
     /// charge : int or sequence of int
-    ///     Target charge state(s); with several, their summed fraction is maximised.
+    ///     Target charge state(s), each listed once (a repeat is refused); with several, their
+    ///     summed fraction is maximised.
     /// photon_energies_ev : array_like
     ///     Photon energies (eV) to try; flux and bandwidth held fixed.
     /// times_s : array_like
@@ -237,8 +238,16 @@ fn _photoionization_subshells<'py>(
         let ion = el.ion(charge)?;
         crate::error::require_all_positive("photon_energies_ev", &energies)?;
         let labels: Vec<String> = ion.subshells().iter().map(|s| s.subshell.label()).collect();
-        let mut sigma = ndarray::Array2::zeros((energies.len(), labels.len()));
+        let what = "the subshell photoionization cross sections";
+        crate::limits::check_memory(
+            what,
+            crate::limits::bytes_for(&[energies.len(), labels.len()], 8),
+        )?;
+        let mut sigma = crate::limits::try_zeros(what, energies.len(), labels.len())?;
         for (i, &e) in energies.iter().enumerate() {
+            if i % 4096 == 0 {
+                crate::interrupt::check()?;
+            }
             for (j, s) in subshell_cross_sections_cm2(&ion, e)?.iter().enumerate() {
                 sigma[[i, j]] = s.cross_section_cm2;
             }
@@ -246,6 +255,26 @@ fn _photoionization_subshells<'py>(
         Ok((labels, sigma))
     })?;
     Ok((labels, matrix_to_py(py, sigma)))
+}
+
+/// Total photoionization cross section (cm²) of ion `charge` at each photon energy.
+#[pyfunction]
+fn _photoionization_total<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: &Bound<'py, PyAny>,
+    photon_energies_ev: &Bound<'py, PyAny>,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let charge = int_arg("charge", charge)?;
+    let energies = array1_arg("photon_energies_ev", photon_energies_ev)?;
+    let sigma = guard(py, || {
+        crate::processes::photoionization::photoionization_cross_sections_cm2(
+            &el.ion(charge)?,
+            &energies,
+        )
+    })?;
+    Ok(super::to_py(py, sigma))
 }
 
 /// P(k), k = 0, 1, … extra electrons after a vacancy in `subshell` of ion `charge`.
@@ -682,6 +711,7 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyElementSelectivity>()?;
     m.add_class::<PyPhotonSelectivity>()?;
     m.add_function(wrap_pyfunction!(_photoionization_subshells, m)?)?;
+    m.add_function(wrap_pyfunction!(_photoionization_total, m)?)?;
     m.add_function(wrap_pyfunction!(_vacancy_relaxation, m)?)?;
     m.add_function(wrap_pyfunction!(photon_thresholds_py, m)?)?;
     m.add_function(wrap_pyfunction!(photon_selectivity_py, m)?)?;

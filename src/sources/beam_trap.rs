@@ -402,6 +402,18 @@ impl BeamTrap {
     /// electron space charge, shared as the fractions say (neutrals are not trapped).
     pub fn ions_per_extraction(&self, fractions: &[f64]) -> Result<Vec<f64>> {
         self.check_settings()?;
+        // Fractions of a charge-state distribution: each finite and in [0, 1].
+        if let Some((q, f)) = fractions
+            .iter()
+            .enumerate()
+            .find(|(_, f)| !(f.is_finite() && (0.0..=1.0).contains(*f)))
+        {
+            return Err(Error::invalid(
+                &format!("fractions[{q}]"),
+                f,
+                "each charge-state fraction must be a finite number in [0, 1]",
+            ));
+        }
         let charge_sum: f64 = fractions
             .iter()
             .enumerate()
@@ -577,6 +589,9 @@ mod tests {
         let n = t.ions_per_extraction(&fr).unwrap();
         let total_charge: f64 = n.iter().enumerate().map(|(q, v)| q as f64 * v).sum();
         assert!((total_charge / (0.5 * t.electrons_in_trap()) - 1.0).abs() < 1e-12);
+        for bad in [-0.5, f64::NAN, f64::INFINITY, 1.5] {
+            assert!(t.ions_per_extraction(&[0.5, bad, 1.0]).is_err(), "{bad}");
+        }
     }
 
     #[test]

@@ -17,7 +17,7 @@
 
 use crate::atoms::Element;
 use crate::constants::ELEMENTARY_CHARGE_C;
-use crate::error::{require_positive, Result};
+use crate::error::{require_all_positive, require_positive, Result};
 use crate::processes::ion_lotz::{ionization_cross_sections_cm2, peak_energy_ev};
 use crate::processes::lotz::LotzConstants;
 
@@ -96,6 +96,46 @@ pub fn breeding_time_s(
     Ok(j_tau_c_cm2(element, charge, energy_ev, constants)? / current_density_a_cm2)
 }
 
+/// [`j_tau_c_cm2`] at many beam energies at once: each step's Lotz shells are built once
+/// and evaluated at every energy (the per-energy ladder would also rebuild them, and find
+/// each step's peak energy, for every energy).
+pub fn j_tau_c_cm2_at(
+    element: &'static Element,
+    charge: i64,
+    energies_ev: &[f64],
+    constants: Option<LotzConstants>,
+) -> Result<Vec<f64>> {
+    require_all_positive("energy_ev", energies_ev)?;
+    element.check_charge(charge, element.z())?;
+    let mut j_tau = vec![0.0; energies_ev.len()];
+    for q in 0..charge {
+        crate::interrupt::check()?;
+        let sigma = ionization_cross_sections_cm2(element, q, energies_ev, constants)?;
+        for (jt, s) in j_tau.iter_mut().zip(sigma) {
+            *jt += if s > 0.0 {
+                ELEMENTARY_CHARGE_C / s
+            } else {
+                f64::INFINITY
+            };
+        }
+    }
+    Ok(j_tau)
+}
+
+/// [`breeding_time_s`] at many beam energies at once (see [`j_tau_c_cm2_at`]).
+pub fn breeding_times_s(
+    element: &'static Element,
+    charge: i64,
+    energies_ev: &[f64],
+    current_density_a_cm2: f64,
+    constants: Option<LotzConstants>,
+) -> Result<Vec<f64>> {
+    require_positive("current_density_a_cm2", current_density_a_cm2)?;
+    let mut out = j_tau_c_cm2_at(element, charge, energies_ev, constants)?;
+    out.iter_mut().for_each(|t| *t /= current_density_a_cm2);
+    Ok(out)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -132,5 +172,21 @@ mod tests {
         let ar = element("Ar").unwrap();
         // 1 keV cannot remove a 1s electron (IE of Ar16+ is 4.1 keV, NIST ASD).
         assert!(j_tau_c_cm2(ar, 17, 1000.0, None).unwrap().is_infinite());
+    }
+
+    #[test]
+    fn many_energies_at_once_equal_one_at_a_time() {
+        let au = element("Au").unwrap();
+        let energies = [3e3, 1e4, 2.5e4, 6e4];
+        let many = breeding_times_s(au, 60, &energies, 250.0, None).unwrap();
+        for (e, t) in energies.iter().zip(&many) {
+            let one = breeding_time_s(au, 60, *e, 250.0, None).unwrap();
+            assert!(
+                one == *t || (one - t).abs() <= 1e-12 * one,
+                "{e}: {one} vs {t}"
+            );
+        }
+        // A NaN energy is refused, as it is one at a time.
+        assert!(breeding_times_s(au, 60, &[f64::NAN], 1.0, None).is_err());
     }
 }

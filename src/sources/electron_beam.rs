@@ -68,6 +68,37 @@ pub fn brillouin_radius_m(current_a: f64, energy_ev: f64, magnetic_field_t: f64)
         .sqrt()
 }
 
+/// Check a derived quantity: inputs that are each allowed can still combine to a value f64
+/// cannot hold (a subnormal radius gives an infinite current density, subnormal currents a
+/// radius of 0). Those are refused instead of returned.
+fn require_representable(what: &str, value: f64, inputs: &str) -> Result<f64> {
+    if value.is_finite() && value.is_normal() && value > 0.0 {
+        Ok(value)
+    } else {
+        Err(Error::invalid(
+            what,
+            value,
+            &format!("{inputs} give a value outside the range of 64-bit floats; use inputs nearer the physical range"),
+        ))
+    }
+}
+
+/// [`brillouin_radius_m`] with its inputs checked (finite, > 0) and its result too.
+pub fn checked_brillouin_radius_m(
+    current_a: f64,
+    energy_ev: f64,
+    magnetic_field_t: f64,
+) -> Result<f64> {
+    require_positive("current_a", current_a)?;
+    require_positive("energy_ev", energy_ev)?;
+    require_positive("magnetic_field_t", magnetic_field_t)?;
+    require_representable(
+        "brillouin_radius_m",
+        brillouin_radius_m(current_a, energy_ev, magnetic_field_t),
+        "current_a, energy_ev and magnetic_field_t",
+    )
+}
+
 /// Herrmann radius (m) enclosing 80 % of the current, G. Herrmann, J. Appl. Phys. 29, 127
 /// (1958) (from memory):
 ///
@@ -108,7 +139,7 @@ pub fn space_charge_depression_v(
     beam_radius_m: f64,
     drift_tube_radius_m: f64,
 ) -> f64 {
-    let geometry = 1.0 + 2.0 * (drift_tube_radius_m / beam_radius_m).ln();
+    let geometry = 1.0 + 2.0 * (drift_tube_radius_m.ln() - beam_radius_m.ln());
     current_a * geometry / (4.0 * PI * EPSILON_0 * electron_speed_m_s(energy_ev))
 }
 
@@ -140,7 +171,7 @@ fn validate_tube(
 
 /// Geometry factor (1 − f)(1 + 2 ln(b/a)) of the depression.
 fn depression_geometry(beam_radius_m: f64, drift_tube_radius_m: f64, compensation: f64) -> f64 {
-    (1.0 - compensation) * (1.0 + 2.0 * (drift_tube_radius_m / beam_radius_m).ln())
+    (1.0 - compensation) * (1.0 + 2.0 * (drift_tube_radius_m.ln() - beam_radius_m.ln()))
 }
 
 /// Largest current (A) a beam can carry through the drift tube at the given tube-to-cathode
@@ -197,7 +228,7 @@ pub fn effective_energy_ev(
         * current_a
         * vacuum_impedance_over_4pi_ohm();
     if k == 0.0 {
-        return Ok(u);
+        return require_representable("effective_energy_ev", u, "the tube-to-cathode voltage");
     }
     let limit =
         space_charge_limited_current_a(u, beam_radius_m, drift_tube_radius_m, compensation)?;
@@ -230,7 +261,11 @@ pub fn effective_energy_ev(
             lo = mid;
         }
     }
-    Ok(0.5 * (lo + hi))
+    require_representable(
+        "effective_energy_ev",
+        0.5 * (lo + hi),
+        "tube_to_cathode_v, current_a and the radii",
+    )
 }
 
 /// Number of electrons N_e = I L/(e v) inside a trap of length L (m).
@@ -348,11 +383,16 @@ impl ElectronBeam {
         require_positive("energy_ev", energy_ev)?;
         require_positive("current_a", current_a)?;
         require_positive("radius_m", radius_m)?;
+        let j = require_representable(
+            "current_density_a_cm2",
+            current_density_a_cm2(current_a, radius_m),
+            "current_a and radius_m",
+        )?;
         Ok(Self {
             energy_ev,
             current_a,
             radius_m,
-            current_density_a_cm2: current_density_a_cm2(current_a, radius_m),
+            current_density_a_cm2: j,
         })
     }
 
@@ -366,10 +406,15 @@ impl ElectronBeam {
         require_positive("current_a", current_a)?;
         require_positive("current_density_a_cm2", current_density_a_cm2)?;
         let radius_cm = (current_a / (PI * current_density_a_cm2)).sqrt();
+        let radius_m = require_representable(
+            "radius_m",
+            radius_cm / 100.0,
+            "current_a and current_density_a_cm2",
+        )?;
         Ok(Self {
             energy_ev,
             current_a,
-            radius_m: radius_cm / 100.0,
+            radius_m,
             current_density_a_cm2,
         })
     }
@@ -386,7 +431,7 @@ impl ElectronBeam {
         Self::with_radius(
             energy_ev,
             current_a,
-            brillouin_radius_m(current_a, energy_ev, magnetic_field_t),
+            checked_brillouin_radius_m(current_a, energy_ev, magnetic_field_t)?,
         )
     }
 
@@ -404,7 +449,8 @@ impl ElectronBeam {
         require_positive("current_a", current_a)?;
         require_positive("magnetic_field_t", magnetic_field_t)?;
         require_positive("cathode_radius_m", cathode_radius_m)?;
-        require_non_negative("cathode_temperature_k", cathode_temperature_k)?;
+        // A cathode emits only when hot: 0 K is not a cathode temperature.
+        require_positive("cathode_temperature_k", cathode_temperature_k)?;
         require_non_negative("cathode_field_t", cathode_field_t)?;
         let radius_m = herrmann_radius_m(
             current_a,
@@ -444,6 +490,34 @@ impl ElectronBeam {
     /// Electron flux j/e in electrons cm⁻² s⁻¹.
     pub fn electron_flux_per_cm2_s(&self) -> f64 {
         self.current_density_a_cm2 / ELEMENTARY_CHARGE_C
+    }
+
+    /// Space-charge depression axis-to-wall (V) of this beam in a drift tube of radius (m),
+    /// with the tube radius checked (finite, at least the beam radius) and the result too.
+    pub fn depression_in_tube_v(&self, drift_tube_radius_m: f64) -> Result<f64> {
+        require_positive("drift_tube_radius_m", drift_tube_radius_m)?;
+        if drift_tube_radius_m < self.radius_m {
+            return Err(Error::invalid(
+                "drift_tube_radius_m",
+                drift_tube_radius_m,
+                &format!("must be >= the beam radius {} m", self.radius_m),
+            ));
+        }
+        let v = space_charge_depression_v(
+            self.current_a,
+            self.energy_ev,
+            self.radius_m,
+            drift_tube_radius_m,
+        );
+        if v.is_finite() {
+            Ok(v)
+        } else {
+            Err(Error::invalid(
+                "drift_tube_radius_m",
+                drift_tube_radius_m,
+                "gives an infinite depression against this beam radius; use a tube radius nearer the beam's",
+            ))
+        }
     }
 
     /// Electron speed in m/s.
@@ -648,5 +722,28 @@ mod tests {
         assert!(ElectronBeam::with_current_density(8000.0, 0.3, f64::NAN).is_err());
         assert!(ElectronBeam::with_magnetic_field(8000.0, -0.3, 3.0).is_err());
         assert!(ElectronBeam::with_herrmann(8000.0, 0.3, 3.0, 1e-3, -1.0, 0.0).is_err());
+    }
+
+    #[test]
+    fn unrepresentable_results_are_refused() {
+        // Subnormal radius: I/(πr²) overflows to inf.
+        assert!(ElectronBeam::with_radius(1e3, 0.1, 5e-324).is_err());
+        // Subnormal current density: the radius overflows.
+        assert!(ElectronBeam::with_current_density(1e3, 0.1, 5e-324).is_err());
+        // Subnormal current: the Brillouin radius underflows to 0.
+        assert!(checked_brillouin_radius_m(5e-324, 1e3, 1.0).is_err());
+        assert!(checked_brillouin_radius_m(0.5, 1e3, 1.0).is_ok());
+        assert!(effective_energy_ev(5e-324, 0.0, 1e-4, 1e-3, 0.0).is_err());
+        let beam = ElectronBeam::with_radius(1e4, 0.5, 1e-4).unwrap();
+        // ln b − ln a, not ln(b/a): a tube of 1e308 m gives a finite (if silly) depression,
+        // 1 + 2 ln(1e312) ≈ 1437 times I/(4πε₀v) (hand value).
+        let wide = beam.depression_in_tube_v(1e308).unwrap();
+        let unit = 0.5 / (4.0 * PI * EPSILON_0 * beam.speed_m_s());
+        assert!(rel(wide, unit * (1.0 + 2.0 * 312.0 * std::f64::consts::LN_10)) < 1e-12);
+        assert!(beam.depression_in_tube_v(1e-5).is_err());
+        assert!(beam.depression_in_tube_v(5e-3).unwrap() > 0.0);
+        // A cathode at 0 K does not emit.
+        assert!(ElectronBeam::with_herrmann(1e4, 0.5, 1.0, 1e-3, 0.0, 0.0).is_err());
+        assert!(ElectronBeam::with_herrmann(1e4, 0.5, 1.0, 1e-3, 1400.0, 0.0).is_ok());
     }
 }

@@ -171,11 +171,22 @@ pub fn appearance_curves(
     require_all_positive("energies_ev", energies_ev)?;
     require_non_negative("energy_spread_ev", energy_spread_ev)?;
     let n = element.z() as usize + 1;
-    let rows: Vec<Result<Vec<f64>>> = energies_ev
-        .par_iter()
-        .map(|&e| Ok(spread_cross_sections(element, e, energy_spread_ev)?.total_cm2()))
-        .collect();
-    let mut out = Array2::zeros((energies_ev.len(), n));
+    // The rows and the matrix built from them: twice energies × (Z+1) values.
+    let what = "the appearance curves";
+    crate::limits::check_memory(
+        what,
+        crate::limits::bytes_for(&[2, energies_ev.len(), n], 8),
+    )?;
+    let rows: Vec<Result<Vec<f64>>> = crate::interrupt::run_polled(|| {
+        energies_ev
+            .par_iter()
+            .map(|&e| {
+                crate::interrupt::check()?;
+                Ok(spread_cross_sections(element, e, energy_spread_ev)?.total_cm2())
+            })
+            .collect()
+    });
+    let mut out = crate::limits::try_zeros(what, energies_ev.len(), n)?;
     for (i, row) in rows.into_iter().enumerate() {
         for (j, v) in row?.into_iter().enumerate() {
             out[[i, j]] = v;

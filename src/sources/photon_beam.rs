@@ -215,10 +215,17 @@ pub fn photon_network(
     if beam.flux_cm2_s == 0.0 {
         return Ok(net);
     }
-    let jumps: Vec<Result<Vec<(u32, f64)>>> = (0..z)
-        .into_par_iter()
-        .map(|q| beam.jumps_from(element, q))
-        .collect();
+    // Heavy elements take seconds here (a cascade per subshell per charge): poll for Ctrl-C
+    // between charges.
+    let jumps: Vec<Result<Vec<(u32, f64)>>> = crate::interrupt::run_polled(|| {
+        (0..z)
+            .into_par_iter()
+            .map(|q| {
+                crate::interrupt::check()?;
+                beam.jumps_from(element, q)
+            })
+            .collect()
+    });
     for (q, row) in jumps.into_iter().enumerate() {
         for (to, rate) in row? {
             net.add_rate(q, to as usize, rate)?;
@@ -276,6 +283,19 @@ pub fn photon_thresholds(
     }
     let sigma = subshell_cross_sections_cm2(&neutral, photon_energy_ev)?;
     let total: f64 = sigma.iter().map(|s| s.cross_section_cm2).sum();
+    let absorbs = total.is_finite() && total > 0.0;
+    if !absorbs && !out.is_empty() {
+        // Far above every edge the cross section falls below the smallest f64: no photon
+        // is absorbed in the model, so there are no yields to share out.
+        return Err(Error::invalid(
+            "photon_energy_ev",
+            photon_energy_ev,
+            &format!(
+                "the photoionization cross section of {} is {total} cm² there (below the                  range of 64-bit floats); use a photon energy nearer the physical range",
+                element.symbol()
+            ),
+        ));
+    }
     let per_charge_cm2 = vacancy_jumps(
         &neutral,
         sigma.iter().map(|s| (s.subshell, s.cross_section_cm2)),
