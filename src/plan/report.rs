@@ -277,11 +277,14 @@ pub struct Report {
     /// Residual-gas elements in the spectrum: symbol, amount, fractions 0…Z.
     pub residual_fractions: Vec<(String, f64, Vec<f64>)>,
     pub lines: LineList,
-    pub neighbourhood: Neighbourhood,
+    /// None when the target isotope makes no line at this setting (see the notes).
+    pub neighbourhood: Option<Neighbourhood>,
     /// Charge states of the target isotope, best score first.
     pub ranking: Vec<RankedCharge>,
     pub recommended: Option<Recommendation>,
     pub notes: Vec<String>,
+    /// Plausibility warnings (settings outside what the models were made for).
+    pub warnings: Vec<super::warnings::Warning>,
 }
 
 impl Report {

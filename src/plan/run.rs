@@ -2,6 +2,7 @@
 
 use super::report::*;
 use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target};
+use super::warnings::{source_warnings, threshold_warning, time_grid_warning, Warning};
 use crate::atoms::Element;
 use crate::error::Result;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
@@ -26,6 +27,10 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     let target_el = s.target.element();
     let q = s.target.charge;
     let mut notes = Vec::new();
+    let mut warnings: Vec<Warning> = source_warnings(&s.source);
+    if let Some(w) = threshold_warning(s) {
+        warnings.push(w);
+    }
 
     let ladder = ladder(s, &source, target_el)?;
     let photon_thresholds = match &s.source {
@@ -84,7 +89,14 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                 fractions: e.at(t_ex.0),
             });
         }
-        if f_peak < MIN_PRACTICAL_FRACTION {
+        let over_bred = time_grid_warning(s, times[0], evo.peak(q).0, evo.mean_charge()[0]);
+        if let Some(w) = over_bred {
+            notes.push(format!(
+                "{}{q}+ is over-bred before the first time point {:.3e} s: lower [time] start_s (start earlier).",
+                s.target.symbol, times[0]
+            ));
+            warnings.push(w);
+        } else if f_peak < MIN_PRACTICAL_FRACTION {
             notes.push(format!(
                 "{}{q}+ stays below 0.1 % on the time grid at this setting: see the best energy below, or extend [time] stop_s.",
                 s.target.symbol
@@ -133,8 +145,28 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
 
     let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
     let lines = spectrum_lines(s, &fractions_at_extraction, &residual_fractions)?;
-    let neighbourhood = neighbourhood(s, &lines)?;
-    let ranking = ranking(s, &lines)?;
+    // An unreachable target has no line of its own: the report says so and goes on.
+    let neighbourhood = match neighbourhood(s, &lines) {
+        Ok(n) => Some(n),
+        Err(crate::error::Error::NoData { what, why }) => {
+            notes.push(format!(
+                "no A/q neighbourhood of {}: no data for {what} ({why})",
+                s.target.label()
+            ));
+            None
+        }
+        Err(e) => return Err(e),
+    };
+    let ranking = match ranking(s, &lines) {
+        Ok(r) => r,
+        Err(crate::error::Error::NoData { what, why }) => {
+            notes.push(format!(
+                "no charge-state ranking: no data for {what} ({why})"
+            ));
+            Vec::new()
+        }
+        Err(e) => return Err(e),
+    };
     let recommended = ranking.iter().find(|r| r.eligible).map(|r| {
         let l = &r.rank.line;
         let own_peak = match (
@@ -183,6 +215,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         ranking,
         recommended,
         notes,
+        warnings,
     })
 }
 

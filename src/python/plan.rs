@@ -549,6 +549,30 @@ pub(crate) struct PyRecommendation {
     peak_fraction: Option<f64>,
 }
 
+/// A plausibility warning: what is checked, the value, its unit, the range the models
+/// were made for (with its source) and the whole message.
+#[pyclass(name = "ModelWarning", module = "chargecast", frozen, get_all)]
+#[derive(Clone)]
+pub(crate) struct PyModelWarning {
+    what: String,
+    value: f64,
+    unit: String,
+    range: String,
+    message: String,
+}
+
+impl PyModelWarning {
+    fn from_core(w: &plan::Warning) -> Self {
+        PyModelWarning {
+            what: w.what.to_string(),
+            value: w.value,
+            unit: w.unit.to_string(),
+            range: w.range.clone(),
+            message: w.message.clone(),
+        }
+    }
+}
+
 /// The electron beam of the report's trap as built from the scenario.
 #[pyclass(name = "ReportBeam", module = "chargecast", frozen, get_all)]
 #[derive(Clone)]
@@ -595,6 +619,7 @@ impl PyReport {
         if let Some(e) = failed.into_inner().unwrap_or_else(|p| p.into_inner()) {
             return Err(e);
         }
+        super::errors::warn_all(py, &report.warnings)?;
         Ok(PyReport { inner: report })
     }
     #[getter]
@@ -808,10 +833,10 @@ impl PyReport {
         }
     }
     #[getter]
-    fn neighbourhood(&self) -> PyNeighbourhood {
-        let n = &self.inner.neighbourhood;
+    fn neighbourhood(&self) -> Option<PyNeighbourhood> {
+        let n = self.inner.neighbourhood.as_ref()?;
         let o = &n.overlap;
-        PyNeighbourhood {
+        Some(PyNeighbourhood {
             target: o.target.label(),
             m_over_q: o.target.m_over_q,
             a_over_q: o.target.a_over_q,
@@ -837,7 +862,7 @@ impl PyReport {
                 .collect(),
             resolving_power_needed: n.resolving_power_needed,
             resolved: n.resolved,
-        }
+        })
     }
     #[getter]
     fn ranking(&self) -> Vec<PyRanked> {
@@ -880,6 +905,15 @@ impl PyReport {
     fn notes(&self) -> Vec<String> {
         self.inner.notes.clone()
     }
+    /// Plausibility warnings (also raised as ``ChargecastWarning`` when the report is made).
+    #[getter]
+    fn warnings(&self) -> Vec<PyModelWarning> {
+        self.inner
+            .warnings
+            .iter()
+            .map(PyModelWarning::from_core)
+            .collect()
+    }
     /// Printed at the end of every report.
     #[getter]
     fn cautions(&self) -> &'static str {
@@ -908,5 +942,6 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRanked>()?;
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
+    m.add_class::<PyModelWarning>()?;
     Ok(())
 }
