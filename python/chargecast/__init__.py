@@ -15,6 +15,7 @@ from __future__ import annotations
 from chargecast import _core
 from chargecast._core import (
     ChargecastError,
+    ChargecastWarning,
     ChargeOutOfRangeError,
     InvalidParameterError,
     NoDataError,
@@ -127,6 +128,7 @@ __all__ = [
     "lotz_peak_energy_ev",
     "lotz_rate_coefficient_cm3_s",
     "ChargecastError",
+    "ChargecastWarning",
     "ChargeOutOfRangeError",
     "InvalidParameterError",
     "NoDataError",

@@ -283,7 +283,8 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     o = report.neighbourhood
     s = report.scenario
     r = float(s.separator.resolving_power)
-    centre = o.m_over_q
+    # Without a target line (the target is not made) centre on its nominal A/q.
+    centre = o.m_over_q if o is not None else s.target.mass_number / s.target.charge
     lo, hi = centre * (1 - 4.5 / r), centre * (1 + 4.5 / r)
     rec = report.recommended
     if rec is not None:
@@ -291,7 +292,7 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     ax = lines.plot(
         ax=ax,
         resolving_power=r,
-        target=(s.target.isotope, int(s.target.charge)),
+        target=(s.target.isotope, int(s.target.charge)) if o is not None else None,
         shape=s.separator.peak_shape,
         m_over_q_range=(lo, hi),
     )
@@ -302,6 +303,10 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
         xy = getattr(text, "xy", None)
         if xy is not None and xy[1] < 0.03 * ymax:
             text.remove()
+    if o is None:
+        ax.set_title(f"A/q near {s.target.label}: the target is not made at this setting", fontsize=10)
+        ax.legend(fontsize=8, frameon=False, loc="upper left", bbox_to_anchor=(1.0, 1.0))
+        return ax
     ax.axvspan(*o.window, color=PALETTE[3], alpha=0.12, lw=0, label="target acceptance window")
     if rec is not None and rec.label != o.target:
         i = int(np.flatnonzero(lines.label == rec.label)[0])

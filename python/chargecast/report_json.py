@@ -116,6 +116,7 @@ def to_dict(report: Any) -> dict[str, Any]:
             ("charge", "label", "a_over_q", "m_over_q", "fraction", "purity", "score", "main_contaminant"),
         ),
         "notes": r.notes,
+        "warnings": [_fields(w, ("what", "value", "unit", "range", "message")) for w in r.warnings],
         "cautions": r.cautions,
     }
     evo = r.target_evolution
@@ -169,7 +170,16 @@ def to_dict(report: Any) -> dict[str, Any]:
             "all_charges": d.all_charges,
         }
     o = r.neighbourhood
-    out["aq_neighbourhood"] = {
+    out["aq_neighbourhood"] = None if o is None else _neighbourhood(o)
+    out["charge_state_ranking"] = [
+        _fields(rk, ("charge", "ion", "a_over_q", "fraction", "purity", "score", "main_contaminant"))
+        for rk in r.ranking
+    ]
+    return _jsonable(out)
+
+
+def _neighbourhood(o: Any) -> dict[str, Any]:
+    return {
         "target": o.target,
         "m_over_q": o.m_over_q,
         "a_over_q": o.a_over_q,
@@ -196,11 +206,6 @@ def to_dict(report: Any) -> dict[str, Any]:
             for i in o.interferers
         ],
     }
-    out["charge_state_ranking"] = [
-        _fields(rk, ("charge", "ion", "a_over_q", "fraction", "purity", "score", "main_contaminant"))
-        for rk in r.ranking
-    ]
-    return _jsonable(out)
 
 
 def to_json(report: Any, indent: int | None = 2) -> str:

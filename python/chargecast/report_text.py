@@ -101,6 +101,9 @@ class _TextReport:
         out += self.ions()
         out += self.neighbourhood()
         out += self.recommendation()
+        if r.warnings:
+            out += ["", "Warnings (settings outside what the models were made for)"]
+            out += [f"  - {w.message}" for w in r.warnings]
         if r.notes:
             out += ["", "Notes"] + [f"  - {n}" for n in r.notes]
         out += ["", "Cautions", *textwrap.wrap(r.cautions, 88, initial_indent="  ", subsequent_indent="  ")]
@@ -313,6 +316,8 @@ class _TextReport:
 
     def neighbourhood(self) -> list[str]:
         o = self.r.neighbourhood
+        if o is None:
+            return ["", f"A/q neighbourhood of {self.s.target.label}: not computed (see the notes)"]
         header = [
             "ion",
             "m/q (u/e)",

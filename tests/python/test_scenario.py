@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import json
 import re
 from pathlib import Path
@@ -10,6 +11,7 @@ import numpy as np
 import pytest
 
 import chargecast as cc
+from chargecast import cli
 from chargecast.scenario import Scenario
 
 GOOD = """\
@@ -278,3 +280,67 @@ def test_other_source_kinds_run(name: str, needs: str) -> None:
     assert d["target"] == report.scenario.target_label
     assert d["aq_neighbourhood"] is not None and d["recommended_charge_state"] is not None
     assert "Cautions" in report.text()
+
+
+UNREACHABLE = """\
+title = "rubidium below its threshold"
+[target]
+isotope = "97Rb"
+charge = 23
+
+[beam_trap]
+energy_ev = 1000.0
+current_a = 0.05
+radius_m = 100e-6
+length_m = 0.5
+
+[residual_gas_pa]
+H2 = 1e-9
+
+[time]
+start_s = 1e-3
+stop_s = 10.0
+points = 60
+
+[energy_scan]
+start_ev = 800.0
+stop_ev = 4000.0
+points = 8
+"""
+
+
+def test_an_unreachable_target_gives_a_report_json_and_figures(tmp_path: Path) -> None:
+    # 97Rb23+ needs 1024 eV (the ionization energy of Rb22+); the beam has 1000 eV.
+    path = tmp_path / "rb.toml"
+    path.write_text(UNREACHABLE, encoding="utf-8")
+    out_json = tmp_path / "rb.json"
+    with pytest.warns(cc.ChargecastWarning, match="needs at least 1024"):
+        with out_json.open("w", encoding="utf-8") as fh:
+            with contextlib.redirect_stdout(fh):
+                code = cli.main(["plan", str(path), "--json", "--plot", str(tmp_path / "fig")])
+    assert code == 0
+    d = json.loads(out_json.read_text(encoding="utf-8"))
+    assert d["aq_neighbourhood"] is None
+    assert any("no A/q neighbourhood" in n for n in d["notes"])
+    assert [w["what"] for w in d["warnings"]] == ["target_threshold"]
+    assert sorted(p.name for p in (tmp_path / "fig").iterdir()) == sorted(Path(f).name for f in d["figures"])
+    assert len(d["figures"]) == 4
+    with pytest.warns(cc.ChargecastWarning):
+        text = Scenario.from_text(UNREACHABLE).run().text()
+    assert "Warnings" in text and "not computed" in text
+
+
+def test_steady_state_with_losses_and_no_feed_says_everything_leaks_out() -> None:
+    rates = np.array([[0.0, 1.0], [0.0, 0.0]])
+    with pytest.raises(cc.InvalidParameterError, match="everything leaks out"):
+        cc.steady_state_rate_equations(rates, loss_per_s=np.array([0.0, 0.5]))
+
+
+def test_bundled_scenarios_raise_no_warning() -> None:
+    import warnings
+
+    for name, path in cc.bundled_scenarios().items():
+        with warnings.catch_warnings():
+            warnings.simplefilter("error", cc.ChargecastWarning)
+            report = cc.load_scenario(path).run()
+        assert report.warnings == [], name
