@@ -66,38 +66,40 @@ def _axes(ax: Any) -> Any:
 
 
 def plot_evolution(report: Any, ax: Any | None = None) -> Any:
-    """Charge states near the target over time, with the extraction time marked.
+    """The target element's charge states as a map over log time (colour = fraction), the
+    target's row framed with its fraction as a curve, a side panel of the target and its
+    neighbours, and the extraction time marked.
 
     Returns
     -------
     matplotlib Axes
+        The map's axes.
     """
     evo = _evolution(report)
     if evo is None:
         return plot_yields(report, ax)
     ax = _axes(ax)
     q = int(report.scenario.target.charge)
-    # Six states around the target: enough context, and the palette's first six colours
-    # (its yellow, hard to see as a line on white, is the seventh).
-    near = [c for c in range(max(0, q - 3), min(evo.z, q + 2) + 1) if evo.fractions[:, c].max() > 1e-3]
-    evo.plot(ax=ax, charges=near)
-    for line in ax.get_lines():
-        if line.get_label() == f"{q}+":
-            line.set_linewidth(2.6)
+    kind = report.scenario.source.kind
+    label = "exposure time (s)" if kind == "photon_beam" else "confinement time (s)"
+    # Rows: every state that reaches 1 %, and a few either side of the target.
+    shown = set(evo.dominant_charges(0.01)) | set(range(max(0, q - 3), min(evo.z, q + 3) + 1))
+    evo.plot(ax=ax, charges=sorted(shown), target=q, time_label=label)
     t_ex = report.extraction_time_s
-    ax.axvline(t_ex, color="black", lw=1, ls=":")
+    ax.axvline(t_ex, color="white", lw=1.2, ls=":")
     ax.annotate(
         f"extraction {t_ex:.3g} s",
         (t_ex, 1.0),
+        xycoords=("data", "axes fraction"),
         textcoords="offset points",
-        xytext=(-4, -2),
-        ha="right",
-        va="top",
+        xytext=(0, 4),
+        ha="center",
+        va="bottom",
         fontsize=8,
     )
-    ax.set_title(f"{evo.element} charge states near the target {q}+ ({source_line(report)})", fontsize=10)
-    if report.scenario.source.kind == "photon_beam":
-        ax.set_xlabel("exposure time (s)")
+    ax.set_title(
+        f"{evo.element} charge states, target {q}+ framed ({source_line(report)})", fontsize=10, pad=16
+    )
     return ax
 
 

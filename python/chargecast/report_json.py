@@ -147,6 +147,24 @@ def to_dict(report: Any) -> dict[str, Any]:
     }
     if sc.kind == "appearance":
         out["best_energy"]["best_cross_section_cm2"] = sc.best_cross_section_cm2
+    ro = r.robust_optimum
+    if ro is not None:
+        out["best_energy"]["robust"] = _fields(
+            ro,
+            (
+                "spread_ev",
+                "energy_ev",
+                "time_s",
+                "fraction",
+                "sharp_energy_ev",
+                "on_scan_edge",
+                "near_threshold",
+                "next_threshold_charge",
+                "next_threshold_ev",
+                "margin_ev",
+                "tube_voltage_v",
+            ),
+        )
     if r.photon_thresholds is not None:
         out["one_photon"] = [
             {

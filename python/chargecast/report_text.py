@@ -284,6 +284,26 @@ class _TextReport:
             t, f = self.r.target_peak
             energy = s.source.energy_ev if s.source.energy_ev is not None else s.source.photon_energy_ev
             out.append(f"  at the scenario's {energy:.5g} eV: peak fraction {f:.4f} at {t:.3g} s")
+        ro = self.r.robust_optimum
+        if ro is not None:
+            out.append(
+                f"  robust (averaged over the beam's {ro.spread_ev:.3g} eV energy spread): "
+                f"{ro.energy_ev:.5g} eV at {ro.time_s:.3g} s, fraction {ro.fraction:.4f}"
+            )
+            if ro.next_threshold_ev is not None and ro.margin_ev is not None:
+                out.append(
+                    f"  margin to the next threshold: {ro.margin_ev:.4g} eV "
+                    f"(opens {s.target.symbol}{ro.next_threshold_charge}+ at {ro.next_threshold_ev:.5g} eV)"
+                )
+            if ro.on_scan_edge:
+                out.append("  ⚠ the optimum is on the edge of the energy scan: widen [energy_scan]")
+            if ro.near_threshold:
+                out.append("  ⚠ the optimum lies within the energy spread of an ionization threshold")
+            if ro.tube_voltage_v is not None:
+                out.append(
+                    f"  tube-to-cathode voltage for it on the beam axis (space-charge depression): "
+                    f"{ro.tube_voltage_v:.5g} V"
+                )
         return out
 
     def ions(self) -> list[str]:

@@ -378,6 +378,14 @@ impl Checker<'_, '_> {
             ));
         }
         let cathode_field_t = t.cathode_field_t.unwrap_or(0.0);
+        if let Some(b) = t.drift_tube_radius_m {
+            if !(b.is_finite() && b > 0.0) {
+                return Err(self.err(
+                    "beam_trap.drift_tube_radius_m",
+                    format!("the drift-tube radius must be a positive number of metres, not {b}"),
+                ));
+            }
+        }
         let processes = match t.processes {
             None => DEFAULT_PROCESSES.iter().map(|p| p.to_string()).collect(),
             Some(list) => {
@@ -409,6 +417,7 @@ impl Checker<'_, '_> {
             gas_temperature_k: t.gas_temperature_k.unwrap_or(DEFAULT_GAS_TEMPERATURE_K),
             compensation: t.compensation.unwrap_or(DEFAULT_COMPENSATION),
             processes,
+            drift_tube_radius_m: t.drift_tube_radius_m,
         })
     }
 

@@ -108,13 +108,13 @@ pub fn source_warnings(source: &SourceSettings) -> Vec<Warning> {
         Ok(b) => beam_warnings(b.energy_ev, b.current_a, b.radius_m),
         Err(_) => Vec::new(),
     };
-    if let Some(w) = brillouin_note(t) {
+    if let Some(w) = brillouin_settings_note(t) {
         out.push(w);
     }
     out
 }
 
-fn brillouin_note(t: &BeamTrapSettings) -> Option<Warning> {
+fn brillouin_settings_note(t: &BeamTrapSettings) -> Option<Warning> {
     let brillouin_only = t.radius_m.is_none()
         && t.current_density_a_cm2.is_none()
         && t.magnetic_field_t.is_some()
@@ -122,14 +122,18 @@ fn brillouin_note(t: &BeamTrapSettings) -> Option<Warning> {
     if !brillouin_only {
         return None;
     }
-    let r = t.beam().ok()?.radius_m;
-    Some(Warning::new(
+    Some(brillouin_note(t.beam().ok()?.radius_m))
+}
+
+/// The note on a beam sized by its Brillouin radius `radius_m` alone.
+pub fn brillouin_note(radius_m: f64) -> Warning {
+    Warning::new(
         "brillouin_radius",
-        r,
+        radius_m,
         "m",
         "real beams are several times wider: give cathode_radius_m and cathode_temperature_k for Herrmann's radius (G. Herrmann, J. Appl. Phys. 29, 127 (1958))".into(),
         "note: the beam radius is the Brillouin radius, without Herrmann's correction",
-    ))
+    )
 }
 
 /// The energy (eV) a source needs to make `charge`+ of `element`: the last step's

@@ -549,6 +549,24 @@ pub(crate) struct PyRecommendation {
     peak_fraction: Option<f64>,
 }
 
+/// The best energy and time averaged over the beam's energy spread, with its flags.
+#[pyclass(name = "RobustOptimum", module = "chargecast", frozen, get_all)]
+#[derive(Clone)]
+pub(crate) struct PyRobustOptimum {
+    spread_ev: f64,
+    energy_ev: f64,
+    time_s: f64,
+    fraction: f64,
+    sharp_energy_ev: f64,
+    on_scan_edge: bool,
+    near_threshold: bool,
+    /// Charge the next ionization threshold above the optimum opens (None: none).
+    next_threshold_charge: Option<u32>,
+    next_threshold_ev: Option<f64>,
+    margin_ev: Option<f64>,
+    tube_voltage_v: Option<f64>,
+}
+
 /// A plausibility warning: what is checked, the value, its unit, the range the models
 /// were made for (with its source) and the whole message.
 #[pyclass(name = "ModelWarning", module = "chargecast", frozen, get_all)]
@@ -809,6 +827,23 @@ impl PyReport {
             inner: self.inner.energy_scan.clone(),
         }
     }
+    /// The spread-averaged optimum (beam trap; None for other sources).
+    #[getter]
+    fn robust_optimum(&self) -> Option<PyRobustOptimum> {
+        self.inner.robust_optimum.as_ref().map(|r| PyRobustOptimum {
+            spread_ev: r.spread_ev,
+            energy_ev: r.energy_ev,
+            time_s: r.time_s,
+            fraction: r.fraction,
+            sharp_energy_ev: r.sharp_energy_ev,
+            on_scan_edge: r.on_scan_edge,
+            near_threshold: r.near_threshold,
+            next_threshold_charge: r.next_threshold.map(|t| t.0),
+            next_threshold_ev: r.next_threshold.map(|t| t.1),
+            margin_ev: r.margin_ev,
+            tube_voltage_v: r.tube_voltage_v,
+        })
+    }
     #[getter]
     fn ions(&self) -> Option<PyIons> {
         self.inner.ions.clone().map(|inner| PyIons { inner })
@@ -943,5 +978,6 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
     m.add_class::<PyModelWarning>()?;
+    m.add_class::<PyRobustOptimum>()?;
     Ok(())
 }

@@ -344,3 +344,32 @@ def test_bundled_scenarios_raise_no_warning() -> None:
             warnings.simplefilter("error", cc.ChargecastWarning)
             report = cc.load_scenario(path).run()
         assert report.warnings == [], name
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"energy_ev": 5000.0, "current_a": 1e-3, "radius_m": 1e-9}, "current density beyond"),
+        ({"energy_ev": 1e9, "current_a": 0.5, "radius_m": 250e-6}, "non-relativistic"),
+        ({"energy_ev": 1e4, "current_a": 50.0, "radius_m": 0.05}, "perveance limit"),
+        ({"energy_ev": 5000.0, "current_a": 0.5, "magnetic_field_t": 3.0}, "Herrmann"),
+    ],
+)
+def test_each_beam_warning_is_raised_when_the_beam_is_built(kwargs: dict[str, float], match: str) -> None:
+    with pytest.warns(cc.ChargecastWarning, match=match):
+        cc.ElectronBeam(**kwargs)
+
+
+def test_a_charge_breeder_beam_raises_no_warning() -> None:
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", cc.ChargecastWarning)
+        cc.ElectronBeam(
+            energy_ev=3000.0,
+            current_a=0.3,
+            magnetic_field_t=2.0,
+            cathode_radius_m=1e-3,
+            cathode_temperature_k=1400.0,
+            cathode_field_t=0.05,
+        )
