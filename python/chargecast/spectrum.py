@@ -442,8 +442,13 @@ class LineList(_LineColumns):
         visible = (self.m_over_q >= lo) & (self.m_over_q <= hi)
         target_label = report.target if report is not None else None
         kinds: dict[str, list[int]] = {"target": [], "interferer": [], "residual gas": [], "other": []}
+        # Lines below 0.3 % of the tallest one in range would be drawn flat on the axis:
+        # they are left out, so the legend names only classes that can be seen.
+        tallest = float(self.intensity[visible].max()) if visible.any() else 0.0
         for i in np.flatnonzero(visible).tolist():
             name = str(self.label[i])
+            if name != target_label and self.intensity[i] < 3e-3 * tallest:
+                continue
             kind = (
                 "target"
                 if name == target_label

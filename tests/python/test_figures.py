@@ -74,3 +74,16 @@ def test_photon_beam_time_axis_is_exposure_time(outdir: Path) -> None:
         ax.figure.savefig(outdir / "evolution_map_photon.png", dpi=100, bbox_inches="tight")
     assert ax.get_xlabel() == "exposure time (s)"
     plt.close(ax.figure)
+
+
+def test_aq_legend_lists_only_classes_that_are_drawn(outdir: Path) -> None:
+    # 20Ne1+ and a residual-gas 40Ar2+ line 1e-9 as strong at the same A/q: too weak to see.
+    lines = cc.aq_lines({"20Ne": {1: 1.0}}, residual_gas={"Ar": (1e-9, {2: 1.0})})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        ax = lines.plot(resolving_power=50, target=("20Ne", 1))
+        ax.figure.savefig(outdir / "aq_legend.png", dpi=90, bbox_inches="tight")
+    names = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert "residual gas" not in names and "interferer" not in names, names
+    assert "target" in names
+    plt.close(ax.figure)
