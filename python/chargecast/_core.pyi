@@ -227,7 +227,7 @@ class EnergyScan:
     def best_fraction(self) -> float: ...
 
 # --- electron-beam trap
-@final
+@disjoint_base
 class BeamTrap:
     def __new__(
         cls,

@@ -157,12 +157,12 @@ class Evolution(_core.Evolution):
         # lower states blues, higher states greens/oranges (Okabe–Ito colours).
         role = {-2: PALETTE[5], -1: PALETTE[0], 0: PALETTE[3], 1: PALETTE[2], 2: PALETTE[1]}
         dash = {-2: ":", -1: "--", 0: "-", 1: "-.", 2: (0, (5, 1, 1, 1))}
-        ends = []
+        ends: list[tuple[float, str, str]] = []
         for q in near:
             y = self.fractions[positive, q]
             k = q - target
             ax.plot(t, y, color=role[k], ls=dash[k], lw=2.4 if k == 0 else 1.3)
-            ends.append([float(y[-1]), f"{q}+", role[k]])
+            ends.append((float(y[-1]), f"{q}+", role[k]))
         ax.set_xscale("log")
         ax.set_ylim(0.0, 1.05)
         ax.set_xlabel(time_label, fontsize=8)

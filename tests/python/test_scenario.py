@@ -373,3 +373,19 @@ def test_a_charge_breeder_beam_raises_no_warning() -> None:
             cathode_temperature_k=1400.0,
             cathode_field_t=0.05,
         )
+
+
+def test_sweep_is_labelled_with_units() -> None:
+    trap = cc.BeamTrap(cc.ElectronBeam(energy_ev=3000.0, current_a=0.2, current_density_a_cm2=300.0), 0.5)
+    out = trap.sweep(["He", "Ne"], [1000.0, 3000.0], np.geomspace(1e-3, 1.0, 5))
+    assert out.attrs["units"]["energy_ev"] == "eV"
+    if hasattr(out, "data_vars"):
+        assert out["fraction"].dims == ("element", "energy_ev", "time_s", "charge")
+        assert np.isnan(out["fraction"].sel(element="He", charge=3)).all()
+        total = out["fraction"].sum("charge")
+    else:
+        assert list(out.index.names) == ["element", "energy_ev", "time_s", "charge"]
+        # Helium has charges 0…2 only: no padding rows in the frame.
+        assert out.xs("He", level="element").index.get_level_values("charge").max() == 2
+        total = out["fraction"].groupby(level=["element", "energy_ev", "time_s"]).sum()
+    np.testing.assert_allclose(np.asarray(total), 1.0, atol=1e-9)
