@@ -241,6 +241,21 @@ def plot_energy_map(report: Any, ax: Any | None = None) -> Any:
         color="white",
         fontsize=8,
     )
+    ro = report.robust_optimum
+    if ro is not None:
+        # A second, distinct marker (open circle, not the sharp optimum's star).
+        ax.plot(
+            [ro.time_s],
+            [ro.energy_ev],
+            marker="o",
+            markersize=11,
+            markerfacecolor="none",
+            markeredgecolor=PALETTE[5],
+            markeredgewidth=2,
+            linestyle="none",
+            label=f"over the {ro.spread_ev:.3g} eV spread: {ro.energy_ev:.4g} eV, {ro.time_s:.3g} s",
+        )
+        ax.legend(loc="lower left", fontsize=8)
     return ax
 
 
