@@ -131,3 +131,30 @@ fn no_bundled_scenario_warns() {
         assert!(r.warnings.is_empty(), "{name}: {:?}", whats(&r));
     }
 }
+
+#[test]
+fn the_robust_optimum_steps_off_the_cliff_below_the_next_ionization_energy() {
+    // He-like Fe24+: the sharp optimum sits just below the 8828 eV that opens Fe25+.
+    let text = "title = \"fe\"\n[target]\nisotope = \"56Fe\"\ncharge = 24\n\
+        [beam_trap]\nenergy_ev = 10000.0\ncurrent_a = 0.3\nradius_m = 150e-6\nlength_m = 0.5\n\
+        [residual_gas_pa]\nH2 = 1e-9\n[time]\nstart_s = 1e-3\nstop_s = 20.0\npoints = 40\n\
+        [energy_scan]\nstart_ev = 2000.0\nstop_ev = 12000.0\npoints = 30\n";
+    let r = plan(text);
+    let ro = r.robust_optimum.as_ref().unwrap();
+    let ie = chargecast::atoms::element("Fe")
+        .unwrap()
+        .ionization_energies_ev()[24];
+    assert!(ro.sharp_near_threshold, "sharp {}", ro.sharp_energy_ev);
+    assert!(!ro.near_threshold && !ro.on_scan_edge);
+    assert_eq!(ro.next_threshold, Some((25, ie)));
+    assert!(
+        ro.margin_ev.unwrap() > 0.5 * ro.spread_ev,
+        "{:?}",
+        ro.margin_ev
+    );
+    assert!(
+        ro.spread_ev > 1.0 && ro.spread_ev < 100.0,
+        "{}",
+        ro.spread_ev
+    );
+}

@@ -159,6 +159,7 @@ def to_dict(report: Any) -> dict[str, Any]:
                 "sharp_energy_ev",
                 "on_scan_edge",
                 "near_threshold",
+                "sharp_near_threshold",
                 "next_threshold_charge",
                 "next_threshold_ev",
                 "margin_ev",

@@ -316,6 +316,11 @@ class _TextReport:
                     f"  margin to the next threshold: {ro.margin_ev:.4g} eV "
                     f"(opens {s.target.symbol}{ro.next_threshold_charge}+ at {ro.next_threshold_ev:.5g} eV)"
                 )
+            if ro.sharp_near_threshold:
+                out.append(
+                    f"  ⚠ the sharp best {sc.best_energy_ev:.5g} eV sits on an ionization threshold (a cliff "
+                    "within the beam's spread): use the robust energy"
+                )
             if ro.on_scan_edge:
                 out.append("  ⚠ the optimum is on the edge of the energy scan: widen [energy_scan]")
             if ro.near_threshold:

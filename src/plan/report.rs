@@ -216,6 +216,8 @@ pub struct RobustOptimum {
     pub on_scan_edge: bool,
     /// An ionization threshold of the target element lies within ± spread/2 of the optimum.
     pub near_threshold: bool,
+    /// The same for the sharp optimum: it sits on a cliff that the spread falls over.
+    pub sharp_near_threshold: bool,
     /// The next ionization threshold above the optimum: the charge it opens and its
     /// energy (eV), and the margin (eV) from the optimum to it.
     pub next_threshold: Option<(u32, f64)>,

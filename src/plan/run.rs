@@ -389,6 +389,11 @@ pub fn robust_optimum(
     // Relative tolerance: the scan's ends are exact grid values, but say so for values
     // within rounding of them too.
     let tol = 1e-9 * scan.1.abs();
+    let near = |e: f64| {
+        ionization_energies_ev
+            .iter()
+            .any(|ie| (ie - e).abs() <= 0.5 * spread_ev.max(2.0 * THRESHOLD_SIDE_EV))
+    };
     RobustOptimum {
         spread_ev,
         energy_ev,
@@ -396,9 +401,8 @@ pub fn robust_optimum(
         fraction: best.2.max(0.0),
         sharp_energy_ev: map.best_energy_ev,
         on_scan_edge: energy_ev <= scan.0 + tol || energy_ev >= scan.1 - tol,
-        near_threshold: ionization_energies_ev
-            .iter()
-            .any(|ie| (ie - energy_ev).abs() <= 0.5 * spread_ev.max(THRESHOLD_SIDE_EV)),
+        near_threshold: near(energy_ev),
+        sharp_near_threshold: near(map.best_energy_ev),
         next_threshold: next,
         margin_ev: next.map(|(_, ie)| ie - energy_ev),
         tube_voltage_v: None,
@@ -708,6 +712,8 @@ mod tests {
         assert_eq!(sharp.energy_ev, 990.0);
         assert!(!sharp.near_threshold);
         let r = robust_optimum(&m, 40.0, &[1000.0], (700.0, 1000.0));
+        // The sharp optimum (995 eV) is within 20 eV of the cliff; the robust one is not.
+        assert!(r.sharp_near_threshold);
         assert!(r.energy_ev <= 980.0, "{}", r.energy_ev);
         assert_eq!(r.next_threshold, Some((1, 1000.0)));
         assert_eq!(r.margin_ev, Some(1000.0 - r.energy_ev));

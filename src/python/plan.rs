@@ -560,6 +560,7 @@ pub(crate) struct PyRobustOptimum {
     sharp_energy_ev: f64,
     on_scan_edge: bool,
     near_threshold: bool,
+    sharp_near_threshold: bool,
     /// Charge the next ionization threshold above the optimum opens (None: none).
     next_threshold_charge: Option<u32>,
     next_threshold_ev: Option<f64>,
@@ -838,6 +839,7 @@ impl PyReport {
             sharp_energy_ev: r.sharp_energy_ev,
             on_scan_edge: r.on_scan_edge,
             near_threshold: r.near_threshold,
+            sharp_near_threshold: r.sharp_near_threshold,
             next_threshold_charge: r.next_threshold.map(|t| t.0),
             next_threshold_ev: r.next_threshold.map(|t| t.1),
             margin_ev: r.margin_ev,
