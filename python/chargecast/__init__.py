@@ -16,6 +16,7 @@ from chargecast import _core
 from chargecast._core import (
     ArgumentTypeError,
     ChargecastError,
+    ChargecastWarning,
     ChargeOutOfRangeError,
     InvalidParameterError,
     NoDataError,
@@ -129,6 +130,7 @@ __all__ = [
     "lotz_rate_coefficient_cm3_s",
     "ArgumentTypeError",
     "ChargecastError",
+    "ChargecastWarning",
     "ChargeOutOfRangeError",
     "InvalidParameterError",
     "NoDataError",

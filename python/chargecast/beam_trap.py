@@ -1,6 +1,6 @@
 """Electron-beam ion traps: charge-state evolution, steady state, best energy, ions per
 extraction, and many traps at once. The classes are the compiled ones; EnergyScan adds its
-figure, table and HTML view."""
+figure, table and HTML view, BeamTrap labels its sweeps."""
 
 from __future__ import annotations
 
@@ -10,10 +10,76 @@ from typing import Any, Optional
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import PALETTE, inline_png, require_pyplot
+from chargecast._util import PALETTE, inline_png, require_pandas, require_pyplot
 
-BeamTrap = _core.BeamTrap
 evolve_batch = _core.evolve_batch
+
+#: Units of the labelled sweep's coordinates and values.
+SWEEP_UNITS = {
+    "energy_ev": "eV",
+    "time_s": "s",
+    "charge": "e",
+    "fraction": "1 (fraction of the element's ions)",
+}
+
+
+class BeamTrap(_core.BeamTrap):
+    __doc__ = (_core.BeamTrap.__doc__ or "") + (
+        "\n\n``sweep`` returns a labelled table (an xarray Dataset, or a pandas MultiIndex frame)."
+    )
+
+    __slots__ = ()
+
+    def sweep(self, elements: Any, energies_ev: Any, times_s: Any) -> Any:  # type: ignore[override]
+        """Charge-state fractions of several elements over energies × times, in parallel,
+        as a labelled table.
+
+        Parameters
+        ----------
+        elements : str, int or sequence of str or int
+            Element symbols, names or Z.
+        energies_ev : array_like
+            Electron energies (eV).
+        times_s : array_like
+            Output times (s), ascending.
+
+        Returns
+        -------
+        xarray.Dataset or pandas.DataFrame
+            With xarray installed (``pip install chargecast[xarray]``): a Dataset with the
+            variable ``fraction`` over ``element`` × ``energy_ev`` × ``time_s`` × ``charge``
+            (charges above an element's Z are NaN), units in ``attrs``. Without it: a
+            DataFrame with a (element, energy_ev, time_s, charge) MultiIndex and a
+            ``fraction`` column, units in ``DataFrame.attrs``.
+        """
+        raw = _core.BeamTrap.sweep(self, elements, energies_ev, times_s)
+        e = np.asarray(energies_ev, dtype=float).reshape(-1)
+        t = np.asarray(times_s, dtype=float).reshape(-1)
+        names = list(raw)
+        width = max(a.shape[2] for a in raw.values())
+        cube = np.full((len(names), len(e), len(t), width), np.nan)
+        for i, name in enumerate(names):
+            cube[i, :, :, : raw[name].shape[2]] = raw[name]
+        attrs = {"units": dict(SWEEP_UNITS)}
+        try:
+            import xarray as xr
+        except ImportError:
+            pd = require_pandas()
+            index = pd.MultiIndex.from_product(
+                [names, e, t, np.arange(width)], names=["element", "energy_ev", "time_s", "charge"]
+            )
+            frame = pd.DataFrame({"fraction": cube.reshape(-1)}, index=index).dropna()
+            frame.attrs.update(attrs)
+            return frame
+        ds = xr.Dataset(
+            {"fraction": (("element", "energy_ev", "time_s", "charge"), cube)},
+            coords={"element": names, "energy_ev": e, "time_s": t, "charge": np.arange(width)},
+            attrs=attrs,
+        )
+        for name in ("energy_ev", "time_s", "charge"):
+            ds[name].attrs["units"] = SWEEP_UNITS[name]
+        ds["fraction"].attrs["units"] = SWEEP_UNITS["fraction"]
+        return ds
 
 
 class EnergyScan(_core.EnergyScan):

@@ -248,6 +248,7 @@ class PhotonEnergyScan(EnergyScan):
         """
         ax = super().plot(ax)
         ax.set_ylabel("photon energy (eV)")
+        ax.set_xlabel("exposure time (s)")
         return ax
 
     def __repr__(self) -> str:

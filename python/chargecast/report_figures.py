@@ -66,38 +66,40 @@ def _axes(ax: Any) -> Any:
 
 
 def plot_evolution(report: Any, ax: Any | None = None) -> Any:
-    """Charge states near the target over time, with the extraction time marked.
+    """The target element's charge states as a map over log time (colour = fraction), the
+    target's row framed with its fraction as a curve, a side panel of the target and its
+    neighbours, and the extraction time marked.
 
     Returns
     -------
     matplotlib Axes
+        The map's axes.
     """
     evo = _evolution(report)
     if evo is None:
         return plot_yields(report, ax)
     ax = _axes(ax)
     q = int(report.scenario.target.charge)
-    # Six states around the target: enough context, and the palette's first six colours
-    # (its yellow, hard to see as a line on white, is the seventh).
-    near = [c for c in range(max(0, q - 3), min(evo.z, q + 2) + 1) if evo.fractions[:, c].max() > 1e-3]
-    evo.plot(ax=ax, charges=near)
-    for line in ax.get_lines():
-        if line.get_label() == f"{q}+":
-            line.set_linewidth(2.6)
+    kind = report.scenario.source.kind
+    label = "exposure time (s)" if kind == "photon_beam" else "confinement time (s)"
+    # Rows: every state that reaches 1 %, and a few either side of the target.
+    shown = set(evo.dominant_charges(0.01)) | set(range(max(0, q - 3), min(evo.z, q + 3) + 1))
+    evo.plot(ax=ax, charges=sorted(shown), target=q, time_label=label)
     t_ex = report.extraction_time_s
-    ax.axvline(t_ex, color="black", lw=1, ls=":")
+    ax.axvline(t_ex, color="white", lw=1.2, ls=":")
     ax.annotate(
         f"extraction {t_ex:.3g} s",
         (t_ex, 1.0),
+        xycoords=("data", "axes fraction"),
         textcoords="offset points",
-        xytext=(-4, -2),
-        ha="right",
-        va="top",
+        xytext=(0, 4),
+        ha="center",
+        va="bottom",
         fontsize=8,
     )
-    ax.set_title(f"{evo.element} charge states near the target {q}+ ({source_line(report)})", fontsize=10)
-    if report.scenario.source.kind == "photon_beam":
-        ax.set_xlabel("exposure time (s)")
+    ax.set_title(
+        f"{evo.element} charge states, target {q}+ framed ({source_line(report)})", fontsize=10, pad=16
+    )
     return ax
 
 
@@ -239,6 +241,21 @@ def plot_energy_map(report: Any, ax: Any | None = None) -> Any:
         color="white",
         fontsize=8,
     )
+    ro = report.robust_optimum
+    if ro is not None:
+        # A second, distinct marker (open circle, not the sharp optimum's star).
+        ax.plot(
+            [ro.time_s],
+            [ro.energy_ev],
+            marker="o",
+            markersize=11,
+            markerfacecolor="none",
+            markeredgecolor=PALETTE[5],
+            markeredgewidth=2,
+            linestyle="none",
+            label=f"over the {ro.spread_ev:.3g} eV spread: {ro.energy_ev:.4g} eV, {ro.time_s:.3g} s",
+        )
+        ax.legend(loc="lower left", fontsize=8)
     return ax
 
 
@@ -283,7 +300,8 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     o = report.neighbourhood
     s = report.scenario
     r = float(s.separator.resolving_power)
-    centre = o.m_over_q
+    # Without a target line (the target is not made) centre on its nominal A/q.
+    centre = o.m_over_q if o is not None else s.target.mass_number / s.target.charge
     lo, hi = centre * (1 - 4.5 / r), centre * (1 + 4.5 / r)
     rec = report.recommended
     if rec is not None:
@@ -291,7 +309,7 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     ax = lines.plot(
         ax=ax,
         resolving_power=r,
-        target=(s.target.isotope, int(s.target.charge)),
+        target=(s.target.isotope, int(s.target.charge)) if o is not None else None,
         shape=s.separator.peak_shape,
         m_over_q_range=(lo, hi),
     )
@@ -302,6 +320,10 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
         xy = getattr(text, "xy", None)
         if xy is not None and xy[1] < 0.03 * ymax:
             text.remove()
+    if o is None:
+        ax.set_title(f"A/q near {s.target.label}: the target is not made at this setting", fontsize=10)
+        ax.legend(fontsize=8, frameon=False, loc="upper left", bbox_to_anchor=(1.0, 1.0))
+        return ax
     ax.axvspan(*o.window, color=PALETTE[3], alpha=0.12, lw=0, label="target acceptance window")
     if rec is not None and rec.label != o.target:
         i = int(np.flatnonzero(lines.label == rec.label)[0])

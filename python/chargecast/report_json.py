@@ -116,6 +116,7 @@ def to_dict(report: Any) -> dict[str, Any]:
             ("charge", "label", "a_over_q", "m_over_q", "fraction", "purity", "score", "main_contaminant"),
         ),
         "notes": r.notes,
+        "warnings": [_fields(w, ("what", "value", "unit", "range", "message")) for w in r.warnings],
         "cautions": r.cautions,
     }
     evo = r.target_evolution
@@ -146,6 +147,25 @@ def to_dict(report: Any) -> dict[str, Any]:
     }
     if sc.kind == "appearance":
         out["best_energy"]["best_cross_section_cm2"] = sc.best_cross_section_cm2
+    ro = r.robust_optimum
+    if ro is not None:
+        out["best_energy"]["robust"] = _fields(
+            ro,
+            (
+                "spread_ev",
+                "energy_ev",
+                "time_s",
+                "fraction",
+                "sharp_energy_ev",
+                "on_scan_edge",
+                "near_threshold",
+                "sharp_near_threshold",
+                "next_threshold_charge",
+                "next_threshold_ev",
+                "margin_ev",
+                "tube_voltage_v",
+            ),
+        )
     if r.photon_thresholds is not None:
         out["one_photon"] = [
             {
@@ -169,7 +189,16 @@ def to_dict(report: Any) -> dict[str, Any]:
             "all_charges": d.all_charges,
         }
     o = r.neighbourhood
-    out["aq_neighbourhood"] = {
+    out["aq_neighbourhood"] = None if o is None else _neighbourhood(o)
+    out["charge_state_ranking"] = [
+        _fields(rk, ("charge", "ion", "a_over_q", "fraction", "purity", "score", "main_contaminant"))
+        for rk in r.ranking
+    ]
+    return _jsonable(out)
+
+
+def _neighbourhood(o: Any) -> dict[str, Any]:
+    return {
         "target": o.target,
         "m_over_q": o.m_over_q,
         "a_over_q": o.a_over_q,
@@ -196,11 +225,6 @@ def to_dict(report: Any) -> dict[str, Any]:
             for i in o.interferers
         ],
     }
-    out["charge_state_ranking"] = [
-        _fields(rk, ("charge", "ion", "a_over_q", "fraction", "purity", "score", "main_contaminant"))
-        for rk in r.ranking
-    ]
-    return _jsonable(out)
 
 
 def to_json(report: Any, indent: int | None = 2) -> str:

@@ -52,10 +52,12 @@ def source_line(report: Any) -> str:
 
 
 def _table(header: list[str], rows: list[list[str]]) -> list[str]:
-    widths = [max([len(h)] + [len(r[j]) for r in rows]) for j, h in enumerate(header)]
+    """Right-aligned columns; a row of one cell is a section heading printed as it is."""
+    cells = [r for r in rows if len(r) > 1]
+    widths = [max([len(h)] + [len(r[j]) for r in cells]) for j, h in enumerate(header)]
     out = ["  ".join(h.rjust(w) for h, w in zip(header, widths))]
     out.append("  ".join("-" * w for w in widths))
-    out += ["  ".join(c.rjust(w) for c, w in zip(r, widths)) for r in rows]
+    out += [r[0] if len(r) == 1 else "  ".join(c.rjust(w) for c, w in zip(r, widths)).rstrip() for r in rows]
     return out
 
 
@@ -101,6 +103,9 @@ class _TextReport:
         out += self.ions()
         out += self.neighbourhood()
         out += self.recommendation()
+        if r.warnings:
+            out += ["", "Warnings (settings outside what the models were made for)"]
+            out += [f"  - {w.message}" for w in r.warnings]
         if r.notes:
             out += ["", "Notes"] + [f"  - {n}" for n in r.notes]
         out += ["", "Cautions", *textwrap.wrap(r.cautions, 88, initial_indent="  ", subsequent_indent="  ")]
@@ -156,34 +161,53 @@ class _TextReport:
             sigma_name, time_name = "σ photo (cm²)", "time (s)"
         else:
             head = f"Ionization steps of {sym} (Lotz cross sections at {e:.6g} eV)"
-        header = ["charge", "IE (eV)", "threshold (eV)", "subshell", sigma_name, time_name, "jτ (C/cm²)"]
-        # Columns that mean nothing for this source are left out (they stay in the JSON).
-        ncol = {"beam_trap": 7, "photon_beam": 6, "electron_impact": 5}[kind]
-        header = header[:ncol]
+        # Our layout: the steps grouped by the subshell they empty (a heading per group),
+        # each with how far the beam is above its ionization energy, so an unopened step
+        # or a step on a cliff shows at a glance.
+        # One collision needs the sum of the ionization energies (the threshold), stepwise
+        # sources each step's own.
+        header = {
+            "beam_trap": [
+                "step",
+                "IE (eV)",
+                "beam − IE (eV)",
+                sigma_name,
+                time_name,
+                "jτ (C/cm²)",
+                "threshold (eV)",
+            ],
+            "photon_beam": ["step", "IE (eV)", "beam − IE (eV)", sigma_name, time_name, "threshold (eV)"],
+            "electron_impact": ["step", "IE (eV)", "threshold (eV)", "beam − threshold (eV)", sigma_name],
+        }[kind]
         charges = [st.charge for st in steps]
         keep = _ladder_rows(charges, [st.subshell or "" for st in steps], q)
-        rows = []
+        rows: list[list[str]] = []
+        group = None
         for i, st in enumerate(steps):
             if i not in keep:
                 if i - 1 in keep:
-                    rows.append(["⋮"] + [""] * (ncol - 1))
+                    rows.append(["⋮"] + [""] * (len(header) - 1))
                 continue
-            mark = " ◀" if st.charge == q else ""
-            rows.append(
-                [
-                    f"{st.charge}+{mark}",
-                    _g(st.ionization_energy_ev, ".5g"),
-                    _g(st.threshold_ev, ".6g"),
-                    st.subshell or "–",
-                    _g(st.cross_section_cm2, ".3e"),
-                    _g(st.breeding_time_s, ".3e"),
-                    _g(st.j_tau_c_cm2, ".3e"),
-                ][:ncol]
-            )
+            shell = st.subshell or "bare"
+            if shell != group:
+                group = shell
+                rows.append([f"  · electron from {shell}" if st.subshell else "  · bare ion"])
+            mark = " ◀ target" if st.charge == q else ""
+            cells = {
+                "step": f"{st.charge - 1}+→{st.charge}+{mark}",
+                "IE (eV)": _g(st.ionization_energy_ev, ".5g"),
+                "beam − IE (eV)": _g(e - st.ionization_energy_ev, "+.5g"),
+                sigma_name: _g(st.cross_section_cm2, ".3e"),
+                time_name: _g(st.breeding_time_s, ".3e"),
+                "jτ (C/cm²)": _g(st.j_tau_c_cm2, ".3e"),
+                "threshold (eV)": _g(st.threshold_ev, ".6g"),
+                "beam − threshold (eV)": _g(e - st.threshold_ev, "+.5g"),
+            }
+            rows.append([cells[h] for h in header])
         out = ["", head, *_table(header, rows)]
         out.append(
-            "  IE: energy to make q+ from (q−1)+; threshold: sum from the neutral; subshell: the electron "
-            "removed; σ at the beam energy"
+            "  IE: energy to make q+ from (q−1)+ (negative beam − IE: the step is closed); "
+            "threshold: sum from the neutral; σ at the beam energy"
         )
         if len(keep) < len(steps):
             out.append(
@@ -281,6 +305,31 @@ class _TextReport:
             t, f = self.r.target_peak
             energy = s.source.energy_ev if s.source.energy_ev is not None else s.source.photon_energy_ev
             out.append(f"  at the scenario's {energy:.5g} eV: peak fraction {f:.4f} at {t:.3g} s")
+        ro = self.r.robust_optimum
+        if ro is not None:
+            out.append(
+                f"  robust (averaged over the beam's {ro.spread_ev:.3g} eV energy spread): "
+                f"{ro.energy_ev:.5g} eV at {ro.time_s:.3g} s, fraction {ro.fraction:.4f}"
+            )
+            if ro.next_threshold_ev is not None and ro.margin_ev is not None:
+                out.append(
+                    f"  margin to the next threshold: {ro.margin_ev:.4g} eV "
+                    f"(opens {s.target.symbol}{ro.next_threshold_charge}+ at {ro.next_threshold_ev:.5g} eV)"
+                )
+            if ro.sharp_near_threshold:
+                out.append(
+                    f"  ⚠ the sharp best {sc.best_energy_ev:.5g} eV sits on an ionization threshold (a cliff "
+                    "within the beam's spread): use the robust energy"
+                )
+            if ro.on_scan_edge:
+                out.append("  ⚠ the optimum is on the edge of the energy scan: widen [energy_scan]")
+            if ro.near_threshold:
+                out.append("  ⚠ the optimum lies within the energy spread of an ionization threshold")
+            if ro.tube_voltage_v is not None:
+                out.append(
+                    f"  tube-to-cathode voltage for it on the beam axis (space-charge depression): "
+                    f"{ro.tube_voltage_v:.5g} V"
+                )
         return out
 
     def ions(self) -> list[str]:
@@ -313,6 +362,8 @@ class _TextReport:
 
     def neighbourhood(self) -> list[str]:
         o = self.r.neighbourhood
+        if o is None:
+            return ["", f"A/q neighbourhood of {self.s.target.label}: not computed (see the notes)"]
         header = [
             "ion",
             "m/q (u/e)",

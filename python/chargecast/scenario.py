@@ -38,7 +38,9 @@ Source: exactly one of
     fraction 0…1 of the electron space charge filled by ions: sets the ions per
     extraction), ``processes`` (default ``"ionization"``, ``"radiative_recombination"``,
     ``"charge_exchange"``; add ``"multiple_ionization"`` for Auger cascades after inner-shell
-    ionization and direct double ionization).
+    ionization and direct double ionization); ``drift_tube_radius_m`` (optional: the
+    report then gives the tube-to-cathode voltage of the best energy after the
+    space-charge depression).
 
     ``[photon_beam]`` -- ``photon_energy_ev``, ``flux_cm2_s`` (photons cm⁻² s⁻¹),
     ``bandwidth_ev`` (optional).

@@ -10,14 +10,15 @@ pair is (m/q)/|Δ(m/q)|.
 
 from __future__ import annotations
 
+import contextlib
 import html
-from collections.abc import Mapping
+from collections.abc import Iterator, Mapping
 from typing import Any
 
 import numpy as np
 
 from chargecast import _core
-from chargecast._core import ChargecastError, InvalidParameterError
+from chargecast._core import ArgumentTypeError, ChargecastError, InvalidParameterError
 from chargecast._util import as_float, as_int, require_pandas, require_pyplot
 
 __all__ = [
@@ -442,8 +443,13 @@ class LineList(_LineColumns):
         visible = (self.m_over_q >= lo) & (self.m_over_q <= hi)
         target_label = report.target if report is not None else None
         kinds: dict[str, list[int]] = {"target": [], "interferer": [], "residual gas": [], "other": []}
+        # Lines below 0.3 % of the tallest one in range would be drawn flat on the axis:
+        # they are left out, so the legend names only classes that can be seen.
+        tallest = float(self.intensity[visible].max()) if visible.any() else 0.0
         for i in np.flatnonzero(visible).tolist():
             name = str(self.label[i])
+            if name != target_label and self.intensity[i] < 3e-3 * tallest:
+                continue
             kind = (
                 "target"
                 if name == target_label
@@ -533,6 +539,18 @@ def _shape(shape: Any) -> str:
     return shape
 
 
+@contextlib.contextmanager
+def _result_columns(cls: str, made_by: str) -> Iterator[None]:
+    """Malformed column tables given to a result class become one documented error."""
+    try:
+        yield
+    except (KeyError, IndexError, TypeError, ValueError, AttributeError) as exc:
+        raise ArgumentTypeError(
+            f"invalid d for {cls}: {type(exc).__name__} ({str(exc)[:60]}); {cls} objects are "
+            f"results: get one from {made_by}"
+        ) from None
+
+
 class OverlapReport(_LineColumns):
     """The lines near a target ion at one resolving power; made by :func:`overlaps`.
 
@@ -593,6 +611,10 @@ class OverlapReport(_LineColumns):
     }
 
     def __init__(self, d: Mapping[str, Any], lines: LineList, resolving_power: float) -> None:
+        with _result_columns("OverlapReport", "overlaps()"):
+            self._fill(d, lines, resolving_power)
+
+    def _fill(self, d: Mapping[str, Any], lines: LineList, resolving_power: float) -> None:
         self._set_lines(d)
         self.target = str(d["target_label"][0])
         self.target_isotope = str(d["target_isotope"][0])
@@ -755,6 +777,10 @@ class ChargeStateRanking(_LineColumns):
     }
 
     def __init__(self, d: Mapping[str, Any], isotope: str) -> None:
+        with _result_columns("ChargeStateRanking", "clean_charge_states()"):
+            self._fill(d, isotope)
+
+    def _fill(self, d: Mapping[str, Any], isotope: str) -> None:
         self._set_lines(d)
         self.target_isotope = isotope
         self.fraction = np.asarray(d["fraction"], dtype=np.float64)

@@ -395,6 +395,14 @@ impl Checker<'_, '_> {
             self.err(&path, e)
         })?;
         let cathode_field_t = t.cathode_field_t.unwrap_or(0.0);
+        if let Some(b) = t.drift_tube_radius_m {
+            if !(b.is_finite() && b > 0.0) {
+                return Err(self.err(
+                    "beam_trap.drift_tube_radius_m",
+                    format!("the drift-tube radius must be a positive number of metres, not {b}"),
+                ));
+            }
+        }
         let processes = match t.processes {
             None => Processes::default()
                 .names()
@@ -430,6 +438,7 @@ impl Checker<'_, '_> {
             gas_temperature_k: t.gas_temperature_k.unwrap_or(DEFAULT_GAS_TEMPERATURE_K),
             compensation: t.compensation.unwrap_or(DEFAULT_COMPENSATION),
             processes,
+            drift_tube_radius_m: t.drift_tube_radius_m,
         })
     }
 

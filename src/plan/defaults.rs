@@ -6,7 +6,7 @@ use super::settings::{SourceSettings, Target};
 use crate::atoms::{element, Element};
 use crate::sources::beam_trap::Processes;
 use crate::sources::breeding::breeding_time_s;
-use crate::sources::electron_beam::current_density_a_cm2;
+use crate::sources::electron_beam::{current_density_a_cm2, space_charge_depression_v};
 
 /// Processes a beam trap can include (the core's list).
 pub const PROCESSES: [&str; 4] = Processes::NAMES;
@@ -67,3 +67,24 @@ pub fn default_energy_range(source: &SourceSettings, target: &Target) -> (f64, f
         (10.0, 1e5)
     }
 }
+
+/// Default energy spread (full width, eV) of a trap's electron beam: the space-charge
+/// potential difference between the axis and the edge of a uniform beam,
+/// (1 − f)·I/(4πε₀v) (Gauss's law; the depression with the drift tube at the beam edge),
+/// f the compensated fraction. Across a uniform beam the potential is parabolic in r and
+/// the area grows as r dr, so the electrons' energies are spread uniformly over this width
+/// around the mean; the cathode's thermal spread (≈ kT_c, 0.1 eV) is negligible beside it.
+pub fn beam_energy_spread_ev(
+    energy_ev: f64,
+    current_a: f64,
+    radius_m: f64,
+    compensation: f64,
+) -> f64 {
+    (1.0 - compensation) * space_charge_depression_v(current_a, energy_ev, radius_m, radius_m)
+}
+
+/// Points at which the spread-averaged fraction samples the beam's energy distribution.
+pub const SPREAD_SAMPLES: usize = 17;
+/// The energy scan of a beam trap adds points this far (eV) below and above the
+/// thresholds that open and over-breed the target, so the map resolves their jumps.
+pub const THRESHOLD_SIDE_EV: f64 = 0.01;

@@ -18,6 +18,7 @@ pub mod report;
 pub mod run;
 pub(crate) mod schema;
 pub mod settings;
+pub mod warnings;
 
 pub use checker::parse_scenario;
 pub use report::*;
@@ -27,3 +28,4 @@ pub use settings::{
     BeamTrapSettings, ElectronImpactSettings, EnergyGrid, PhotonBeamSettings, Scenario, Separator,
     SourceSettings, SpeciesEntry, Target, TimeGrid,
 };
+pub use warnings::Warning;

@@ -197,6 +197,36 @@ impl EnergyScan {
     }
 }
 
+/// The best energy and time when the beam's energy spread is taken into account, with the
+/// flags a planner needs: an optimum on the edge of the scan, or within the spread of an
+/// ionization threshold, and the margin to the next threshold.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RobustOptimum {
+    /// Full width (eV) of the beam's energy distribution averaged over (see
+    /// [`super::defaults::beam_energy_spread_ev`]).
+    pub spread_ev: f64,
+    /// Beam energy (eV) and time (s) that maximise the spread-averaged target fraction.
+    pub energy_ev: f64,
+    pub time_s: f64,
+    /// The spread-averaged target fraction there.
+    pub fraction: f64,
+    /// The best energy of the sharp (spread-free) map, for comparison.
+    pub sharp_energy_ev: f64,
+    /// The optimum is the first or last energy of the scan: the true optimum may lie outside.
+    pub on_scan_edge: bool,
+    /// An ionization threshold of the target element lies within ± spread/2 of the optimum.
+    pub near_threshold: bool,
+    /// The same for the sharp optimum: it sits on a cliff that the spread falls over.
+    pub sharp_near_threshold: bool,
+    /// The next ionization threshold above the optimum: the charge it opens and its
+    /// energy (eV), and the margin (eV) from the optimum to it.
+    pub next_threshold: Option<(u32, f64)>,
+    pub margin_ev: Option<f64>,
+    /// When the drift-tube radius is known: the tube-to-cathode voltage (V) that puts the
+    /// optimum on the beam axis after the space-charge depression; else None.
+    pub tube_voltage_v: Option<f64>,
+}
+
 /// Ions per extraction of a beam trap.
 #[derive(Clone, Debug, PartialEq)]
 pub struct IonsPerExtraction {
@@ -273,15 +303,20 @@ pub struct Report {
     /// Time (s) and fraction of the target's peak at the scenario's settings.
     pub target_peak: Option<(f64, f64)>,
     pub energy_scan: EnergyScan,
+    /// The spread-averaged optimum (beam trap; None for other sources).
+    pub robust_optimum: Option<RobustOptimum>,
     pub ions: Option<IonsPerExtraction>,
     /// Residual-gas elements in the spectrum: symbol, amount, fractions 0…Z.
     pub residual_fractions: Vec<(String, f64, Vec<f64>)>,
     pub lines: LineList,
-    pub neighbourhood: Neighbourhood,
+    /// None when the target isotope makes no line at this setting (see the notes).
+    pub neighbourhood: Option<Neighbourhood>,
     /// Charge states of the target isotope, best score first.
     pub ranking: Vec<RankedCharge>,
     pub recommended: Option<Recommendation>,
     pub notes: Vec<String>,
+    /// Plausibility warnings (settings outside what the models were made for).
+    pub warnings: Vec<super::warnings::Warning>,
 }
 
 impl Report {

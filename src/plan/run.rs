@@ -1,13 +1,16 @@
 //! Running a scenario: every number of the report, computed once, here.
 
+use super::defaults::{beam_energy_spread_ev, SPREAD_SAMPLES, THRESHOLD_SIDE_EV};
 use super::report::*;
 use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target};
+use super::warnings::{source_warnings, threshold_warning, time_grid_warning, Warning};
 use crate::atoms::Element;
 use crate::error::Result;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::sources::appearance_curves;
 use crate::sources::breeding::breeding_ladder;
 use crate::sources::electron_beam::current_density_a_cm2;
+use crate::sources::energy_map::{spread_averaged, EnergyTimeMap};
 use crate::sources::photon_beam::photon_thresholds;
 use crate::sources::Source;
 use crate::spectrum::{
@@ -26,6 +29,10 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     let target_el = s.target.element();
     let q = s.target.charge;
     let mut notes = Vec::new();
+    let mut warnings: Vec<Warning> = source_warnings(&s.source);
+    if let Some(w) = threshold_warning(s) {
+        warnings.push(w);
+    }
 
     let ladder = ladder(s, &source, target_el)?;
     let photon_thresholds = match &s.source {
@@ -37,6 +44,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     let mut extraction = None;
     let mut fractions_at_extraction = Vec::new();
     let mut ions = None;
+    let mut robust = None;
     let energy_scan;
     if let Source::ElectronImpact(src) = &source {
         for sp in &s.species {
@@ -84,7 +92,14 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                 fractions: e.at(t_ex.0),
             });
         }
-        if f_peak < MIN_PRACTICAL_FRACTION {
+        let over_bred = time_grid_warning(s, times[0], evo.peak(q).0, evo.mean_charge()[0]);
+        if let Some(w) = over_bred {
+            notes.push(format!(
+                "{}{q}+ is over-bred before the first time point {:.3e} s: lower [time] start_s (start earlier).",
+                s.target.symbol, times[0]
+            ));
+            warnings.push(w);
+        } else if f_peak < MIN_PRACTICAL_FRACTION {
             notes.push(format!(
                 "{}{q}+ stays below 0.1 % on the time grid at this setting: see the best energy below, or extend [time] stop_s.",
                 s.target.symbol
@@ -98,7 +113,25 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                 &fractions_at_extraction,
             )?);
         }
-        energy_scan = EnergyScan::Map(energy_map(s, &source, target_el, &times, progress)?);
+        let map = energy_map(s, &source, target_el, &times, progress)?;
+        if let Source::BeamTrap(trap) = &source {
+            let b = &trap.beam;
+            let spread =
+                beam_energy_spread_ev(b.energy_ev, b.current_a, b.radius_m, trap.compensation);
+            let scan = (s.energy_scan.start_ev, s.energy_scan.stop_ev);
+            let mut best = robust_optimum(&map, spread, target_el.ionization_energies_ev(), scan);
+            if let (SourceSettings::BeamTrap(t), Some(tube)) = (&s.source, drift_tube_radius_m(s)) {
+                best.tube_voltage_v = tube_voltage_v(
+                    best.energy_ev,
+                    t.current_a,
+                    b.radius_m,
+                    tube,
+                    trap.compensation,
+                );
+            }
+            robust = Some(best);
+        }
+        energy_scan = EnergyScan::Map(map);
     }
 
     let (evolution_summary, mean_charge_at_extraction, target_peak) = {
@@ -133,8 +166,28 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
 
     let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
     let lines = spectrum_lines(s, &fractions_at_extraction, &residual_fractions)?;
-    let neighbourhood = neighbourhood(s, &lines)?;
-    let ranking = ranking(s, &lines)?;
+    // An unreachable target has no line of its own: the report says so and goes on.
+    let neighbourhood = match neighbourhood(s, &lines) {
+        Ok(n) => Some(n),
+        Err(crate::error::Error::NoData { what, why }) => {
+            notes.push(format!(
+                "no A/q neighbourhood of {}: no data for {what} ({why})",
+                s.target.label()
+            ));
+            None
+        }
+        Err(e) => return Err(e),
+    };
+    let ranking = match ranking(s, &lines) {
+        Ok(r) => r,
+        Err(crate::error::Error::NoData { what, why }) => {
+            notes.push(format!(
+                "no charge-state ranking: no data for {what} ({why})"
+            ));
+            Vec::new()
+        }
+        Err(e) => return Err(e),
+    };
     let recommended = ranking.iter().find(|r| r.eligible).map(|r| {
         let l = &r.rank.line;
         let own_peak = match (
@@ -176,6 +229,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         mean_charge_at_extraction,
         target_peak,
         energy_scan,
+        robust_optimum: robust,
         ions,
         residual_fractions,
         lines,
@@ -183,6 +237,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         ranking,
         recommended,
         notes,
+        warnings,
     })
 }
 
@@ -276,12 +331,27 @@ fn energy_map(
     progress: Progress<'_>,
 ) -> Result<crate::sources::energy_map::EnergyTimeMap> {
     let mut energies = s.energy_scan.energies_ev();
+    let (lo, hi) = (energies[0], energies[energies.len() - 1]);
     let own = s.source.energy_ev();
-    if energies[0] <= own && own <= energies[energies.len() - 1] {
+    if lo <= own && own <= hi {
         energies.push(own);
-        energies.sort_by(f64::total_cmp);
-        energies.dedup();
     }
+    // Both sides of the thresholds that open, and over-breed, the target: the fraction
+    // jumps there, and the spread-averaged optimum must see the jump, not a straight line
+    // across it.
+    if let Source::BeamTrap(_) = source {
+        let ies = el.ionization_energies_ev();
+        let q = s.target.charge as usize;
+        for ie in ies.iter().take(q + 2).skip(q.saturating_sub(1)) {
+            for e in [ie - THRESHOLD_SIDE_EV, ie + THRESHOLD_SIDE_EV] {
+                if lo < e && e < hi {
+                    energies.push(e);
+                }
+            }
+        }
+    }
+    energies.sort_by(f64::total_cmp);
+    energies.dedup();
     source.energy_time_map(
         el,
         &[s.target.charge],
@@ -289,6 +359,90 @@ fn energy_map(
         times,
         &mut |done, total| progress(done, total, "energy scan"),
     )
+}
+
+/// The best point of the map averaged over the beam's energy spread, with its flags.
+/// `ionization_energies_ev[k]` opens charge k + 1; `scan` is the scan's first and last
+/// energy (eV).
+pub fn robust_optimum(
+    map: &EnergyTimeMap,
+    spread_ev: f64,
+    ionization_energies_ev: &[f64],
+    scan: (f64, f64),
+) -> RobustOptimum {
+    let averaged = spread_averaged(&map.energies_ev, &map.fraction, spread_ev, SPREAD_SAMPLES);
+    let mut best = (0, 0, f64::NEG_INFINITY);
+    for (i, row) in averaged.iter().enumerate() {
+        for (k, v) in row.iter().enumerate() {
+            if *v > best.2 {
+                best = (i, k, *v);
+            }
+        }
+    }
+    let energy_ev = map.energies_ev[best.0];
+    let next = ionization_energies_ev
+        .iter()
+        .enumerate()
+        .filter(|(_, ie)| **ie > energy_ev)
+        .min_by(|a, b| a.1.total_cmp(b.1))
+        .map(|(k, ie)| (k as u32 + 1, *ie));
+    // Relative tolerance: the scan's ends are exact grid values, but say so for values
+    // within rounding of them too.
+    let tol = 1e-9 * scan.1.abs();
+    let near = |e: f64| {
+        ionization_energies_ev
+            .iter()
+            .any(|ie| (ie - e).abs() <= 0.5 * spread_ev.max(2.0 * THRESHOLD_SIDE_EV))
+    };
+    RobustOptimum {
+        spread_ev,
+        energy_ev,
+        time_s: map.times_s[best.1],
+        fraction: best.2.max(0.0),
+        sharp_energy_ev: map.best_energy_ev,
+        on_scan_edge: energy_ev <= scan.0 + tol || energy_ev >= scan.1 - tol,
+        near_threshold: near(energy_ev),
+        sharp_near_threshold: near(map.best_energy_ev),
+        next_threshold: next,
+        margin_ev: next.map(|(_, ie)| ie - energy_ev),
+        tube_voltage_v: None,
+    }
+}
+
+/// The drift-tube radius of a beam trap scenario, when given.
+fn drift_tube_radius_m(s: &Scenario) -> Option<f64> {
+    match &s.source {
+        SourceSettings::BeamTrap(t) => t.drift_tube_radius_m,
+        _ => None,
+    }
+}
+
+/// Tube-to-cathode voltage (V) whose on-axis energy after the space-charge depression is
+/// `energy_ev`: the inverse of [`crate::sources::electron_beam::effective_energy_ev`] by
+/// bisection (the on-axis energy rises with the voltage). None if the beam cannot carry
+/// its current at any voltage up to 10 × the energy.
+fn tube_voltage_v(
+    energy_ev: f64,
+    current_a: f64,
+    beam_radius_m: f64,
+    tube_radius_m: f64,
+    compensation: f64,
+) -> Option<f64> {
+    use crate::sources::electron_beam::effective_energy_ev;
+    let on_axis =
+        |u: f64| effective_energy_ev(u, current_a, beam_radius_m, tube_radius_m, compensation).ok();
+    let (mut lo, mut hi) = (energy_ev, 10.0 * energy_ev);
+    if on_axis(hi)? < energy_ev {
+        return None;
+    }
+    for _ in 0..100 {
+        let mid = 0.5 * (lo + hi);
+        match on_axis(mid) {
+            Some(e) if e >= energy_ev => hi = mid,
+            _ => lo = mid,
+        }
+    }
+    Some(hi)
 }
 
 fn appearance_scan(
@@ -524,4 +678,77 @@ fn ranking(s: &Scenario, lines: &crate::spectrum::LineList) -> Result<Vec<Ranked
             }
         })
         .collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A made-up one-time map over `energies` with fraction `f(e)`.
+    fn map(energies: &[f64], f: impl Fn(f64) -> f64) -> EnergyTimeMap {
+        let fraction: Vec<Vec<f64>> = energies.iter().map(|e| vec![f(*e)]).collect();
+        let best = (0..energies.len())
+            .max_by(|a, b| fraction[*a][0].total_cmp(&fraction[*b][0]))
+            .unwrap();
+        EnergyTimeMap {
+            energies_ev: energies.to_vec(),
+            times_s: vec![1.0],
+            best_energy_ev: energies[best],
+            best_time_s: 1.0,
+            best_fraction: fraction[best][0],
+            fraction,
+        }
+    }
+
+    #[test]
+    fn a_sharp_optimum_on_a_cliff_moves_away_by_the_spread_and_reports_its_margin() {
+        // The fraction rises towards a threshold at 1000 eV and collapses above it.
+        let e: Vec<f64> = (0..=60).map(|i| 700.0 + 5.0 * f64::from(i)).collect();
+        let cliff = |x: f64| if x < 1000.0 { x / 1000.0 } else { 0.05 };
+        let m = map(&e, cliff);
+        assert_eq!(m.best_energy_ev, 995.0);
+        // Without spread the optimum stays on the cliff, and is flagged there.
+        let sharp = robust_optimum(&m, 10.0, &[1000.0], (700.0, 1000.0));
+        assert_eq!(sharp.energy_ev, 990.0);
+        assert!(!sharp.near_threshold);
+        let r = robust_optimum(&m, 40.0, &[1000.0], (700.0, 1000.0));
+        // The sharp optimum (995 eV) is within 20 eV of the cliff; the robust one is not.
+        assert!(r.sharp_near_threshold);
+        assert!(r.energy_ev <= 980.0, "{}", r.energy_ev);
+        assert_eq!(r.next_threshold, Some((1, 1000.0)));
+        assert_eq!(r.margin_ev, Some(1000.0 - r.energy_ev));
+        assert!(!r.near_threshold && !r.on_scan_edge);
+        // A peak that sits on a threshold stays there, flagged.
+        let tent = map(&e, |x| 1.0 - (x - 1000.0).abs() / 1000.0);
+        let near = robust_optimum(&tent, 40.0, &[1000.0], (700.0, 1000.0));
+        assert_eq!(near.energy_ev, 1000.0);
+        assert!(near.near_threshold);
+    }
+
+    #[test]
+    fn an_optimum_at_either_end_of_the_scan_is_flagged() {
+        let e: Vec<f64> = (0..=20).map(|i| 2000.0 + 100.0 * f64::from(i)).collect();
+        let falling = robust_optimum(&map(&e, |x| 1.0 / x), 10.0, &[], (2000.0, 4000.0));
+        assert!(falling.on_scan_edge);
+        assert_eq!(falling.energy_ev, 2000.0);
+        let rising = robust_optimum(&map(&e, |x| x), 10.0, &[], (2000.0, 4000.0));
+        assert!(rising.on_scan_edge);
+        let inside = robust_optimum(
+            &map(&e, |x| -(x - 3000.0).powi(2)),
+            10.0,
+            &[],
+            (2000.0, 4000.0),
+        );
+        assert!(!inside.on_scan_edge);
+        assert_eq!(inside.next_threshold, None);
+    }
+
+    #[test]
+    fn the_tube_voltage_puts_the_energy_back_on_axis() {
+        let u = tube_voltage_v(5000.0, 0.3, 100e-6, 5e-3, 0.5).unwrap();
+        let e =
+            crate::sources::electron_beam::effective_energy_ev(u, 0.3, 100e-6, 5e-3, 0.5).unwrap();
+        assert!((e - 5000.0).abs() < 1e-6, "{e}");
+        assert!(u > 5000.0);
+    }
 }

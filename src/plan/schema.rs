@@ -53,6 +53,7 @@ pub(crate) struct RawBeamTrap {
     pub gas_temperature_k: Option<f64>,
     pub compensation: Option<f64>,
     pub processes: Option<Vec<String>>,
+    pub drift_tube_radius_m: Option<f64>,
 }
 
 #[derive(Debug, Deserialize)]

@@ -67,6 +67,10 @@ pub struct BeamTrapSettings {
     pub gas_temperature_k: f64,
     pub compensation: f64,
     pub processes: Vec<String>,
+    /// Drift-tube radius (m): when given, the report's robust optimum also states the
+    /// tube-to-cathode voltage that puts it on the beam axis after the space-charge
+    /// depression.
+    pub drift_tube_radius_m: Option<f64>,
 }
 
 impl BeamTrapSettings {

@@ -39,6 +39,7 @@ impl PyElectronBeam {
                         cathode_radius_m=None, cathode_temperature_k=None, cathode_field_t=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
+        py: Python<'_>,
         energy_ev: &Bound<'_, PyAny>,
         current_a: &Bound<'_, PyAny>,
         radius_m: Option<&Bound<'_, PyAny>>,
@@ -65,6 +66,13 @@ impl PyElectronBeam {
             cathode_field_t,
         )?;
         let inner = ElectronBeam::new(energy_ev, current_a, size)?;
+        // Plausibility warnings, one definition in the core (plan::warnings).
+        let mut warnings =
+            crate::plan::warnings::beam_warnings(inner.energy_ev, inner.current_a, inner.radius_m);
+        if magnetic_field_t.is_some() && cathode_radius_m.is_none() {
+            warnings.push(crate::plan::warnings::brillouin_note(inner.radius_m));
+        }
+        super::errors::warn_all(py, &warnings)?;
         Ok(PyElectronBeam { inner })
     }
     #[getter]

@@ -68,7 +68,7 @@ use crate::sources::beam_trap::{
 /// 1.0
 /// >>> int(np.argmax(evo.fractions[-1]))
 /// 18
-#[pyclass(name = "BeamTrap", module = "chargecast", frozen)]
+#[pyclass(name = "BeamTrap", module = "chargecast", frozen, subclass)]
 pub(crate) struct PyBeamTrap {
     pub(crate) inner: BeamTrap,
 }

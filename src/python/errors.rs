@@ -2,7 +2,7 @@
 //! `ChargecastError`, itself a `ValueError` (bad input is a value problem).
 
 use pyo3::create_exception;
-use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyValueError};
+use pyo3::exceptions::{PyKeyboardInterrupt, PyTypeError, PyUserWarning, PyValueError};
 use pyo3::prelude::*;
 use pyo3::sync::PyOnceLock;
 use pyo3::types::{PyDict, PyTuple, PyType};
@@ -14,6 +14,12 @@ create_exception!(
     ChargecastError,
     PyValueError,
     "Base class of every chargecast error."
+);
+create_exception!(
+    chargecast,
+    ChargecastWarning,
+    PyUserWarning,
+    "A value outside what the models were made for (the run goes on); the message names the value and the range."
 );
 create_exception!(
     chargecast,
@@ -108,6 +114,17 @@ pub(crate) fn to_py_err(err: Error) -> PyErr {
     }
 }
 
+/// Raise each plausibility warning as a `ChargecastWarning` (an error when the warnings
+/// filter turns warnings into errors).
+pub(crate) fn warn_all(py: Python<'_>, warnings: &[crate::plan::Warning]) -> PyResult<()> {
+    let category = py.get_type::<ChargecastWarning>();
+    for w in warnings {
+        let msg = std::ffi::CString::new(w.message.clone()).unwrap_or_default();
+        PyErr::warn(py, &category, &msg, 1)?;
+    }
+    Ok(())
+}
+
 impl From<Error> for PyErr {
     fn from(err: Error) -> PyErr {
         to_py_err(err)
@@ -117,6 +134,7 @@ impl From<Error> for PyErr {
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     let py = m.py();
     m.add("ChargecastError", py.get_type::<ChargecastError>())?;
+    m.add("ChargecastWarning", py.get_type::<ChargecastWarning>())?;
     m.add("UnknownElementError", py.get_type::<UnknownElementError>())?;
     m.add(
         "ChargeOutOfRangeError",

@@ -556,6 +556,49 @@ pub(crate) struct PyRecommendation {
     peak_fraction: Option<f64>,
 }
 
+/// The best energy and time averaged over the beam's energy spread, with its flags.
+#[pyclass(name = "RobustOptimum", module = "chargecast", frozen, get_all)]
+#[derive(Clone)]
+pub(crate) struct PyRobustOptimum {
+    spread_ev: f64,
+    energy_ev: f64,
+    time_s: f64,
+    fraction: f64,
+    sharp_energy_ev: f64,
+    on_scan_edge: bool,
+    near_threshold: bool,
+    sharp_near_threshold: bool,
+    /// Charge the next ionization threshold above the optimum opens (None: none).
+    next_threshold_charge: Option<u32>,
+    next_threshold_ev: Option<f64>,
+    margin_ev: Option<f64>,
+    tube_voltage_v: Option<f64>,
+}
+
+/// A plausibility warning: what is checked, the value, its unit, the range the models
+/// were made for (with its source) and the whole message.
+#[pyclass(name = "ModelWarning", module = "chargecast", frozen, get_all)]
+#[derive(Clone)]
+pub(crate) struct PyModelWarning {
+    what: String,
+    value: f64,
+    unit: String,
+    range: String,
+    message: String,
+}
+
+impl PyModelWarning {
+    fn from_core(w: &plan::Warning) -> Self {
+        PyModelWarning {
+            what: w.what.to_string(),
+            value: w.value,
+            unit: w.unit.to_string(),
+            range: w.range.clone(),
+            message: w.message.clone(),
+        }
+    }
+}
+
 /// The electron beam of the report's trap as built from the scenario.
 #[pyclass(name = "ReportBeam", module = "chargecast", frozen, get_all)]
 #[derive(Clone)]
@@ -608,6 +651,7 @@ impl PyReport {
         if let Some(e) = failed.into_inner().unwrap_or_else(|p| p.into_inner()) {
             return Err(e);
         }
+        super::errors::warn_all(py, &report.warnings)?;
         Ok(PyReport { inner: report })
     }
     #[getter]
@@ -797,6 +841,24 @@ impl PyReport {
             inner: self.inner.energy_scan.clone(),
         }
     }
+    /// The spread-averaged optimum (beam trap; None for other sources).
+    #[getter]
+    fn robust_optimum(&self) -> Option<PyRobustOptimum> {
+        self.inner.robust_optimum.as_ref().map(|r| PyRobustOptimum {
+            spread_ev: r.spread_ev,
+            energy_ev: r.energy_ev,
+            time_s: r.time_s,
+            fraction: r.fraction,
+            sharp_energy_ev: r.sharp_energy_ev,
+            on_scan_edge: r.on_scan_edge,
+            near_threshold: r.near_threshold,
+            sharp_near_threshold: r.sharp_near_threshold,
+            next_threshold_charge: r.next_threshold.map(|t| t.0),
+            next_threshold_ev: r.next_threshold.map(|t| t.1),
+            margin_ev: r.margin_ev,
+            tube_voltage_v: r.tube_voltage_v,
+        })
+    }
     #[getter]
     fn ions(&self) -> Option<PyIons> {
         self.inner.ions.clone().map(|inner| PyIons { inner })
@@ -821,10 +883,10 @@ impl PyReport {
         }
     }
     #[getter]
-    fn neighbourhood(&self) -> PyNeighbourhood {
-        let n = &self.inner.neighbourhood;
+    fn neighbourhood(&self) -> Option<PyNeighbourhood> {
+        let n = self.inner.neighbourhood.as_ref()?;
         let o = &n.overlap;
-        PyNeighbourhood {
+        Some(PyNeighbourhood {
             target: o.target.label(),
             m_over_q: o.target.m_over_q,
             a_over_q: o.target.a_over_q,
@@ -850,7 +912,7 @@ impl PyReport {
                 .collect(),
             resolving_power_needed: n.resolving_power_needed,
             resolved: n.resolved,
-        }
+        })
     }
     #[getter]
     fn ranking(&self) -> Vec<PyRanked> {
@@ -893,6 +955,15 @@ impl PyReport {
     fn notes(&self) -> Vec<String> {
         self.inner.notes.clone()
     }
+    /// Plausibility warnings (also raised as ``ChargecastWarning`` when the report is made).
+    #[getter]
+    fn warnings(&self) -> Vec<PyModelWarning> {
+        self.inner
+            .warnings
+            .iter()
+            .map(PyModelWarning::from_core)
+            .collect()
+    }
     /// Printed at the end of every report.
     #[getter]
     fn cautions(&self) -> &'static str {
@@ -932,5 +1003,7 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
     m.add("MAX_SCENARIO_BYTES", crate::plan::MAX_SCENARIO_BYTES)?;
+    m.add_class::<PyModelWarning>()?;
+    m.add_class::<PyRobustOptimum>()?;
     Ok(())
 }

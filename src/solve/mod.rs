@@ -152,7 +152,8 @@ pub fn evolve(network: &RateNetwork, initial: &[f64], times_s: &[f64]) -> Result
 ///
 /// Without loss and feed: the stationary distribution, normalised to a total of 1; it must
 /// be unique (every state leads into one common closed set of states), otherwise an error.
-/// With loss or feed: the solution of M N + s = 0 (all zeros if there is loss but no feed);
+/// With loss or feed: the solution of M N + s = 0; an `InvalidParameter` error when there is
+/// loss but no feed (everything leaks out, the only steady state is empty);
 /// an error if that system is singular, e.g. feed into states that reach no loss.
 pub fn steady_state(network: &RateNetwork) -> Result<Vec<f64>> {
     steady::steady_state(network)

@@ -43,6 +43,15 @@ pub(crate) fn steady_state(network: &RateNetwork) -> Result<Vec<f64>> {
         return Ok(out);
     }
 
+    // Losses without feed would give all zeros: say so instead of returning an empty state.
+    if network.feed_per_s().iter().all(|&v| v <= 0.0) {
+        return Err(Error::invalid(
+            "feed_per_s",
+            "no feed with losses",
+            "everything leaks out: with losses and no feed the only steady state is empty; \
+             give a feed, or no losses for the stationary distribution",
+        ));
+    }
     // Index 0 is the outside state O, index q + 1 is charge state q.
     let rates = Dense::new(n + 1, |from, to| match (from, to) {
         (0, 0) => 0.0,
@@ -201,6 +210,17 @@ mod tests {
     use super::*;
 
     #[test]
+    fn losses_without_feed_are_an_error_that_says_everything_leaks_out() {
+        let mut net = RateNetwork::new(3).unwrap();
+        net.add_rate(0, 1, 1.0).unwrap();
+        net.add_rate(1, 2, 1.0).unwrap();
+        net.set_loss(2, 0.5).unwrap();
+        let err = steady_state(&net).unwrap_err();
+        assert!(matches!(err, Error::InvalidParameter { .. }), "{err}");
+        assert!(err.to_string().contains("everything leaks out"), "{err}");
+    }
+
+    #[test]
     fn birth_death_chain_obeys_detailed_balance_across_wide_scales() {
         let n = 30;
         let mut net = RateNetwork::new(n).unwrap();
@@ -263,14 +283,5 @@ mod tests {
         assert!(steady_state(&net).is_err());
         net.set_loss(1, 0.5).unwrap();
         assert!(steady_state(&net).is_ok());
-    }
-
-    #[test]
-    fn loss_without_feed_empties_the_system() {
-        let mut net = RateNetwork::new(3).unwrap();
-        net.add_rate(0, 1, 1.0).unwrap();
-        net.add_rate(1, 2, 1.0).unwrap();
-        net.set_loss(2, 1.0).unwrap();
-        assert_eq!(steady_state(&net).unwrap(), vec![0.0; 3]);
     }
 }

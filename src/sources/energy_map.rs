@@ -121,6 +121,59 @@ pub fn energy_time_map_with_progress(
     })
 }
 
+/// The fraction averaged over a beam whose energies are spread uniformly over `width_ev`
+/// around each grid energy: `samples` points from E − w/2 to E + w/2, the map linear in
+/// energy between grid points and held at the grid's ends. `fraction[energy][time]`.
+pub fn spread_averaged(
+    energies_ev: &[f64],
+    fraction: &[Vec<f64>],
+    width_ev: f64,
+    samples: usize,
+) -> Vec<Vec<f64>> {
+    let n_t = fraction.first().map_or(0, Vec::len);
+    if width_ev <= 0.0 || samples < 2 || energies_ev.len() < 2 {
+        return fraction.to_vec();
+    }
+    // Interpolation weights of every sample energy, shared by all times.
+    let at = |x: f64| -> (usize, usize, f64) {
+        let n = energies_ev.len();
+        if x <= energies_ev[0] {
+            return (0, 0, 0.0);
+        }
+        if x >= energies_ev[n - 1] {
+            return (n - 1, n - 1, 0.0);
+        }
+        let hi = energies_ev.partition_point(|e| *e <= x).min(n - 1);
+        let lo = hi - 1;
+        let span = energies_ev[hi] - energies_ev[lo];
+        (
+            lo,
+            hi,
+            if span > 0.0 {
+                (x - energies_ev[lo]) / span
+            } else {
+                0.0
+            },
+        )
+    };
+    energies_ev
+        .iter()
+        .map(|e| {
+            let pts: Vec<(usize, usize, f64)> = (0..samples)
+                .map(|j| at(e + width_ev * (j as f64 / (samples - 1) as f64 - 0.5)))
+                .collect();
+            (0..n_t)
+                .map(|k| {
+                    pts.iter()
+                        .map(|(lo, hi, w)| (1.0 - w) * fraction[*lo][k] + w * fraction[*hi][k])
+                        .sum::<f64>()
+                        / samples as f64
+                })
+                .collect()
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -155,5 +208,18 @@ mod tests {
         assert!(seen.windows(2).all(|w| w[0].0 < w[1].0));
         assert_eq!(map.best_energy_ev, 20.0);
         assert_eq!(map.fraction.len(), 20);
+    }
+
+    #[test]
+    fn spread_averaging_of_a_step_is_its_linear_ramp() {
+        // A cliff between 10 and 10.001 eV: 1 below, 0 above.
+        let e = [0.0, 10.0, 10.001, 20.0];
+        let f = vec![vec![1.0], vec![1.0], vec![0.0], vec![0.0]];
+        let a = spread_averaged(&e, &f, 4.0, 401);
+        // At the cliff half of the beam is above it; 2 eV below the cliff, none is.
+        assert!((a[1][0] - 0.5).abs() < 0.01, "{}", a[1][0]);
+        assert_eq!(a[0][0], 1.0);
+        assert_eq!(a[3][0], 0.0);
+        assert_eq!(spread_averaged(&e, &f, 0.0, 17), f);
     }
 }

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import json
 import re
 from pathlib import Path
@@ -10,6 +11,7 @@ import numpy as np
 import pytest
 
 import chargecast as cc
+from chargecast import cli
 from chargecast.scenario import Scenario
 
 GOOD = """\
@@ -278,3 +280,112 @@ def test_other_source_kinds_run(name: str, needs: str) -> None:
     assert d["target"] == report.scenario.target_label
     assert d["aq_neighbourhood"] is not None and d["recommended_charge_state"] is not None
     assert "Cautions" in report.text()
+
+
+UNREACHABLE = """\
+title = "rubidium below its threshold"
+[target]
+isotope = "97Rb"
+charge = 23
+
+[beam_trap]
+energy_ev = 1000.0
+current_a = 0.05
+radius_m = 100e-6
+length_m = 0.5
+
+[residual_gas_pa]
+H2 = 1e-9
+
+[time]
+start_s = 1e-3
+stop_s = 10.0
+points = 60
+
+[energy_scan]
+start_ev = 800.0
+stop_ev = 4000.0
+points = 8
+"""
+
+
+def test_an_unreachable_target_gives_a_report_json_and_figures(tmp_path: Path) -> None:
+    # 97Rb23+ needs 1024 eV (the ionization energy of Rb22+); the beam has 1000 eV.
+    path = tmp_path / "rb.toml"
+    path.write_text(UNREACHABLE, encoding="utf-8")
+    out_json = tmp_path / "rb.json"
+    with pytest.warns(cc.ChargecastWarning, match="needs at least 1024"):
+        with out_json.open("w", encoding="utf-8") as fh:
+            with contextlib.redirect_stdout(fh):
+                code = cli.main(["plan", str(path), "--json", "--plot", str(tmp_path / "fig")])
+    assert code == 0
+    d = json.loads(out_json.read_text(encoding="utf-8"))
+    assert d["aq_neighbourhood"] is None
+    assert any("no A/q neighbourhood" in n for n in d["notes"])
+    assert [w["what"] for w in d["warnings"]] == ["target_threshold"]
+    assert sorted(p.name for p in (tmp_path / "fig").iterdir()) == sorted(Path(f).name for f in d["figures"])
+    assert len(d["figures"]) == 4
+    with pytest.warns(cc.ChargecastWarning):
+        text = Scenario.from_text(UNREACHABLE).run().text()
+    assert "Warnings" in text and "not computed" in text
+
+
+def test_steady_state_with_losses_and_no_feed_says_everything_leaks_out() -> None:
+    rates = np.array([[0.0, 1.0], [0.0, 0.0]])
+    with pytest.raises(cc.InvalidParameterError, match="everything leaks out"):
+        cc.steady_state_rate_equations(rates, loss_per_s=np.array([0.0, 0.5]))
+
+
+def test_bundled_scenarios_raise_no_warning() -> None:
+    import warnings
+
+    for name, path in cc.bundled_scenarios().items():
+        with warnings.catch_warnings():
+            warnings.simplefilter("error", cc.ChargecastWarning)
+            report = cc.load_scenario(path).run()
+        assert report.warnings == [], name
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"energy_ev": 5000.0, "current_a": 1e-3, "radius_m": 1e-9}, "current density beyond"),
+        ({"energy_ev": 1e9, "current_a": 0.5, "radius_m": 250e-6}, "non-relativistic"),
+        ({"energy_ev": 1e4, "current_a": 50.0, "radius_m": 0.05}, "perveance limit"),
+        ({"energy_ev": 5000.0, "current_a": 0.5, "magnetic_field_t": 3.0}, "Herrmann"),
+    ],
+)
+def test_each_beam_warning_is_raised_when_the_beam_is_built(kwargs: dict[str, float], match: str) -> None:
+    with pytest.warns(cc.ChargecastWarning, match=match):
+        cc.ElectronBeam(**kwargs)
+
+
+def test_a_charge_breeder_beam_raises_no_warning() -> None:
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", cc.ChargecastWarning)
+        cc.ElectronBeam(
+            energy_ev=3000.0,
+            current_a=0.3,
+            magnetic_field_t=2.0,
+            cathode_radius_m=1e-3,
+            cathode_temperature_k=1400.0,
+            cathode_field_t=0.05,
+        )
+
+
+def test_sweep_is_labelled_with_units() -> None:
+    trap = cc.BeamTrap(cc.ElectronBeam(energy_ev=3000.0, current_a=0.2, current_density_a_cm2=300.0), 0.5)
+    out = trap.sweep(["He", "Ne"], [1000.0, 3000.0], np.geomspace(1e-3, 1.0, 5))
+    assert out.attrs["units"]["energy_ev"] == "eV"
+    if hasattr(out, "data_vars"):
+        assert out["fraction"].dims == ("element", "energy_ev", "time_s", "charge")
+        assert np.isnan(out["fraction"].sel(element="He", charge=3)).all()
+        total = out["fraction"].sum("charge")
+    else:
+        assert list(out.index.names) == ["element", "energy_ev", "time_s", "charge"]
+        # Helium has charges 0…2 only: no padding rows in the frame.
+        assert out.xs("He", level="element").index.get_level_values("charge").max() == 2
+        total = out["fraction"].groupby(level=["element", "energy_ev", "time_s"]).sum()
+    np.testing.assert_allclose(np.asarray(total), 1.0, atol=1e-9)
