@@ -158,6 +158,7 @@ def to_dict(report: Any) -> dict[str, Any]:
                 "fraction",
                 "sharp_energy_ev",
                 "on_scan_edge",
+                "at_last_time",
                 "near_threshold",
                 "sharp_near_threshold",
                 "next_threshold_charge",

@@ -323,6 +323,11 @@ class _TextReport:
                 )
             if ro.on_scan_edge:
                 out.append("  ⚠ the optimum is on the edge of the energy scan: widen [energy_scan]")
+            if ro.at_last_time:
+                out.append(
+                    "  ⚠ the optimum is at the last time of the grid: the target may still be rising, "
+                    "extend [time] stop_s"
+                )
             if ro.near_threshold:
                 out.append("  ⚠ the optimum lies within the energy spread of an ionization threshold")
             if ro.tube_voltage_v is not None:

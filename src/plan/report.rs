@@ -214,6 +214,9 @@ pub struct RobustOptimum {
     pub sharp_energy_ev: f64,
     /// The optimum is the first or last energy of the scan: the true optimum may lie outside.
     pub on_scan_edge: bool,
+    /// The optimum is at the last time of the grid: the fraction may still be rising, so a
+    /// longer confinement could do better (extend [time] stop_s).
+    pub at_last_time: bool,
     /// An ionization threshold of the target element lies within ± spread/2 of the optimum.
     pub near_threshold: bool,
     /// The same for the sharp optimum: it sits on a cliff that the spread falls over.

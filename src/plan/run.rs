@@ -401,6 +401,7 @@ pub fn robust_optimum(
         fraction: best.2.max(0.0),
         sharp_energy_ev: map.best_energy_ev,
         on_scan_edge: energy_ev <= scan.0 + tol || energy_ev >= scan.1 - tol,
+        at_last_time: best.1 + 1 == map.times_s.len() && map.times_s.len() > 1,
         near_threshold: near(energy_ev),
         sharp_near_threshold: near(map.best_energy_ev),
         next_threshold: next,
@@ -741,6 +742,36 @@ mod tests {
         );
         assert!(!inside.on_scan_edge);
         assert_eq!(inside.next_threshold, None);
+        assert!(
+            !inside.at_last_time,
+            "a one-time grid has no time edge to flag"
+        );
+    }
+
+    #[test]
+    fn an_optimum_at_the_last_time_is_flagged() {
+        let e = [1000.0, 2000.0, 3000.0];
+        let times = vec![0.1, 1.0, 10.0];
+        let grid = |late_peak: bool| EnergyTimeMap {
+            energies_ev: e.to_vec(),
+            times_s: times.clone(),
+            best_energy_ev: 2000.0,
+            best_time_s: 10.0,
+            best_fraction: 0.5,
+            fraction: e
+                .iter()
+                .map(|x| {
+                    let w = if *x == 2000.0 { 1.0 } else { 0.5 };
+                    if late_peak {
+                        vec![0.1 * w, 0.3 * w, 0.5 * w]
+                    } else {
+                        vec![0.1 * w, 0.5 * w, 0.3 * w]
+                    }
+                })
+                .collect(),
+        };
+        assert!(robust_optimum(&grid(true), 1.0, &[], (1000.0, 3000.0)).at_last_time);
+        assert!(!robust_optimum(&grid(false), 1.0, &[], (1000.0, 3000.0)).at_last_time);
     }
 
     #[test]

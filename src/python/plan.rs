@@ -566,6 +566,7 @@ pub(crate) struct PyRobustOptimum {
     fraction: f64,
     sharp_energy_ev: f64,
     on_scan_edge: bool,
+    at_last_time: bool,
     near_threshold: bool,
     sharp_near_threshold: bool,
     /// Charge the next ionization threshold above the optimum opens (None: none).
@@ -851,6 +852,7 @@ impl PyReport {
             fraction: r.fraction,
             sharp_energy_ev: r.sharp_energy_ev,
             on_scan_edge: r.on_scan_edge,
+            at_last_time: r.at_last_time,
             near_threshold: r.near_threshold,
             sharp_near_threshold: r.sharp_near_threshold,
             next_threshold_charge: r.next_threshold.map(|t| t.0),
