@@ -28,12 +28,13 @@ import stat
 import sys
 import tempfile
 import time
+import warnings
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any, TextIO
 
 from chargecast import __version__
-from chargecast._core import ChargecastError, ScenarioError
+from chargecast._core import ChargecastError, ChargecastWarning, ScenarioError
 from chargecast.scenario import _short
 
 
@@ -189,7 +190,10 @@ def _run_report(path: str, args: argparse.Namespace, out: TextIO) -> int:
     scenario = load_scenario(path)
     bar = ProgressBar(enabled=False if args.no_progress else None)
     try:
-        report = scenario.run(progress=bar)
+        # The report lists its plausibility warnings in its own section: not twice.
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ChargecastWarning)
+            report = scenario.run(progress=bar)
     finally:
         bar.close()
     status = 0
