@@ -406,7 +406,10 @@ impl PyBeamTrap {
         let charges = charges_arg(el, &charge_list_arg(charge)?)?;
         let e = array1_arg("energies_ev", energies_ev)?;
         let t = times_arg(times_s)?;
-        let map = guard(py, || self.inner.energy_time_map(el, &charges, &e, &t))?;
+        let source = crate::sources::Source::BeamTrap(self.inner.clone());
+        let map = guard(py, || {
+            source.energy_time_map(el, &charges, &e, &t, &mut |_, _| {})
+        })?;
         PyEnergyScan::result(py, "EnergyScan", el, charges, map)
     }
 

@@ -33,7 +33,6 @@
 //! (`tests/python/test_trap.py`), and ionization alone reproduces the Bateman chain.
 
 use super::electron_beam::{electrons_in_trap, ElectronBeam};
-use super::energy_map::{energy_time_map, EnergyTimeMap};
 use super::photon_beam::{photon_network, PhotonBeam};
 use crate::atoms::Element;
 use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
@@ -431,20 +430,6 @@ impl BeamTrap {
                 }
             })
             .collect())
-    }
-
-    /// The fraction of the target charge states over an electron-energy × time grid (atoms
-    /// start neutral; current density held fixed), in parallel, and its maximum.
-    pub fn energy_time_map(
-        &self,
-        element: &'static Element,
-        targets: &[u32],
-        energies_ev: &[f64],
-        times_s: &[f64],
-    ) -> Result<EnergyTimeMap> {
-        energy_time_map(element, targets, "energies_ev", energies_ev, times_s, |e| {
-            self.with_energy(e)?.evolve(element, times_s, 0)
-        })
     }
 }
 

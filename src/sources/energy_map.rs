@@ -19,33 +19,14 @@ pub struct EnergyTimeMap {
     pub best_fraction: f64,
 }
 
-/// Evolve at every energy in parallel (`evolve_at(energy)` returns populations [T, Z+1]
-/// at `times_s`) and sum the `targets` charge states.
-pub fn energy_time_map(
-    element: &Element,
-    targets: &[u32],
-    energies_name: &str,
-    energies_ev: &[f64],
-    times_s: &[f64],
-    evolve_at: impl Fn(f64) -> Result<Array2<f64>> + Sync,
-) -> Result<EnergyTimeMap> {
-    energy_time_map_with_progress(
-        element,
-        targets,
-        energies_name,
-        energies_ev,
-        times_s,
-        evolve_at,
-        &mut |_, _| {},
-    )
-}
-
 /// Chunks the energies are cut into, so progress can be reported between them while each
 /// chunk still runs in parallel.
 const PROGRESS_CHUNKS: usize = 8;
 
-/// [`energy_time_map`], calling `progress(energies done, energies in all)` on the calling
-/// thread before the first chunk of energies and after each one.
+/// Evolve at every energy in parallel (`evolve_at(energy)` returns populations [T, Z+1]
+/// at `times_s`), sum the `targets` charge states, and call `progress(energies done,
+/// energies in all)` on the calling thread before the first chunk of energies and after
+/// each one.
 pub fn energy_time_map_with_progress(
     element: &Element,
     targets: &[u32],

@@ -82,10 +82,15 @@ impl Source {
         times_s: &[f64],
         progress: &mut dyn FnMut(usize, usize),
     ) -> Result<EnergyTimeMap> {
+        // The grid is named as the source's own entry point names it, for error messages.
+        let name = match self {
+            Source::PhotonBeam(_) => "photon_energies_ev",
+            _ => "energies_ev",
+        };
         energy_time_map_with_progress(
             element,
             targets,
-            "energies_ev",
+            name,
             energies_ev,
             times_s,
             |e| self.with_energy(e)?.evolve(element, times_s, 0),

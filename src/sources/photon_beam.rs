@@ -36,7 +36,6 @@ use crate::processes::photoionization::subshell_cross_sections_cm2;
 use crate::processes::relaxation::vacancy_relaxation;
 use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
-use crate::sources::energy_map::{energy_time_map, EnergyTimeMap};
 
 /// FWHM of a Gaussian in units of its standard deviation, 2√(2 ln 2).
 pub const FWHM_PER_SIGMA: f64 = 2.354_820_045_030_949;
@@ -131,25 +130,6 @@ impl PhotonBeam {
         let mut initial = vec![0.0; net.n_states()];
         initial[initial_charge as usize] = 1.0;
         evolve(&net, &initial, times_s)
-    }
-
-    /// The summed fraction of the `targets` charge states over a photon-energy × time grid
-    /// (atoms start neutral; flux and bandwidth held fixed), in parallel, and its maximum.
-    pub fn energy_time_map(
-        &self,
-        element: &'static Element,
-        targets: &[u32],
-        photon_energies_ev: &[f64],
-        times_s: &[f64],
-    ) -> Result<EnergyTimeMap> {
-        energy_time_map(
-            element,
-            targets,
-            "photon_energies_ev",
-            photon_energies_ev,
-            times_s,
-            |e| PhotonBeam::new(e, self.flux_cm2_s, self.bandwidth_ev)?.evolve(element, times_s, 0),
-        )
     }
 
     /// Long-time charge-state fractions of atoms that start neutral. Photons only raise the
