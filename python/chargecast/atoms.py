@@ -151,6 +151,10 @@ def _current_density(beam: Any, current_density_a_cm2: Optional[float]) -> float
 
         raise InvalidParameterError("give either beam or current_density_a_cm2, not both")
     if beam is not None:
+        from chargecast._core import ArgumentTypeError, ElectronBeam
+
+        if not isinstance(beam, ElectronBeam):
+            raise ArgumentTypeError(f"invalid beam: {type(beam).__name__} given, must be an ElectronBeam")
         return float(beam.current_density_a_cm2)
     if current_density_a_cm2 is None:
         from chargecast._core import InvalidParameterError

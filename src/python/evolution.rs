@@ -71,13 +71,22 @@ impl PyEvolution {
 #[pymethods]
 impl PyEvolution {
     #[new]
-    #[pyo3(signature = (element=None, times_s=None, fractions=None, label=String::new()))]
+    #[pyo3(signature = (element=None, times_s=None, fractions=None, label=None))]
     fn new(
         element: Option<&Bound<'_, PyAny>>,
         times_s: Option<&Bound<'_, PyAny>>,
         fractions: Option<&Bound<'_, PyAny>>,
-        label: String,
+        label: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let label: String = match label {
+            None => String::new(),
+            Some(l) => l.extract().map_err(|_| {
+                super::errors::argument_type_error(format!(
+                    "invalid label: {} given, must be a str",
+                    super::convert::type_name(l)
+                ))
+            })?,
+        };
         let (element, times_s, fractions) = match (element, times_s, fractions) {
             (Some(e), Some(t), Some(f)) => (e, t, f),
             (None, None, None) => {
@@ -206,9 +215,9 @@ impl PyEvolution {
     }
 
     /// Charge states whose fraction ever exceeds ``threshold``.
-    #[pyo3(signature = (threshold=0.01))]
-    fn dominant_charges(&self, threshold: f64) -> Vec<usize> {
-        self.dominant(threshold)
+    #[pyo3(signature = (threshold=None))]
+    fn dominant_charges(&self, threshold: Option<&Bound<'_, PyAny>>) -> PyResult<Vec<usize>> {
+        Ok(self.dominant(threshold_arg(threshold)?))
     }
 
     /// Per charge state that exceeds ``threshold``: peak fraction, time of peak, final fraction.
@@ -217,8 +226,13 @@ impl PyEvolution {
     /// -------
     /// list of dict
     ///     Keys ``charge``, ``peak_fraction``, ``peak_time_s``, ``final_fraction``.
-    #[pyo3(signature = (threshold=0.01))]
-    fn summary<'py>(&self, py: Python<'py>, threshold: f64) -> PyResult<Vec<Bound<'py, PyDict>>> {
+    #[pyo3(signature = (threshold=None))]
+    fn summary<'py>(
+        &self,
+        py: Python<'py>,
+        threshold: Option<&Bound<'_, PyAny>>,
+    ) -> PyResult<Vec<Bound<'py, PyDict>>> {
+        let threshold = threshold_arg(threshold)?;
         let Some(last) = self.fractions.nrows().checked_sub(1) else {
             return Ok(Vec::new());
         };
@@ -234,6 +248,21 @@ impl PyEvolution {
                 Ok(d)
             })
             .collect()
+    }
+}
+
+/// The fraction above which a charge state counts (default 0.01): a finite number.
+fn threshold_arg(threshold: Option<&Bound<'_, PyAny>>) -> PyResult<f64> {
+    match threshold {
+        None => Ok(0.01),
+        Some(t) => {
+            let t = float_arg("threshold", t)?;
+            if t.is_finite() {
+                Ok(t)
+            } else {
+                Err(Error::invalid("threshold", t, "must be a finite fraction").into())
+            }
+        }
     }
 }
 

@@ -209,7 +209,7 @@ impl PyPhotonBeam {
         let charges = charges_arg(el, &charge_list_arg(charge)?)?;
         let e = array1_arg("photon_energies_ev", photon_energies_ev)?;
         let t = times_arg(times_s)?;
-        let source = crate::sources::Source::PhotonBeam(self.inner.clone());
+        let source = crate::sources::Source::PhotonBeam(self.inner);
         let map = guard(py, || {
             source.energy_time_map(el, &charges, &e, &t, &mut |_, _| {})
         })?;

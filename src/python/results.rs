@@ -65,7 +65,7 @@ pub(crate) fn staged<T: 'static>(what: &str, made_by: &str) -> PyResult<T> {
         .and_then(|b| (b as Box<dyn Any>).downcast::<T>().ok())
         .map(|b| *b)
         .ok_or_else(|| {
-            PyTypeError::new_err(format!(
+            super::errors::argument_type_error(format!(
                 "{what} objects are results: get one from {made_by}"
             ))
         })
