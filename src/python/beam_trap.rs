@@ -440,8 +440,7 @@ impl PyBeamTrap {
         {
             vec![element_arg(elements)?]
         } else {
-            elements
-                .try_iter()?
+            super::convert::iter_arg("elements", elements)?
                 .map(|e| Ok(element_arg(&e?)?))
                 .collect::<PyResult<_>>()?
         };

@@ -322,14 +322,33 @@ pub(crate) fn times_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
 
 /// One target charge state or a sequence of them.
 pub(crate) fn charge_list_arg(value: &Bound<'_, PyAny>) -> PyResult<Vec<i64>> {
+    // A numpy array of any dimension other than 0 is a list; a numpy scalar is one charge.
+    let is_array =
+        value.hasattr("ndim")? && value.getattr("ndim")?.extract::<usize>().unwrap_or(0) > 0;
     if value.is_instance_of::<pyo3::types::PyList>()
         || value.is_instance_of::<pyo3::types::PyTuple>()
-        || value.hasattr("ndim")?
+        || is_array
     {
-        value.try_iter()?.map(|q| int_arg("charge", &q?)).collect()
+        iter_arg("charge", value)?
+            .map(|q| int_arg("charge", &q?))
+            .collect()
     } else {
         Ok(vec![int_arg("charge", value)?])
     }
+}
+
+/// An iterator over a sequence argument; anything that cannot be iterated is an
+/// `ArgumentTypeError` naming the parameter.
+pub(crate) fn iter_arg<'py>(
+    name: &str,
+    value: &Bound<'py, PyAny>,
+) -> PyResult<Bound<'py, pyo3::types::PyIterator>> {
+    value.try_iter().map_err(|_| {
+        super::errors::argument_type_error(format!(
+            "invalid {name}: {} given, must be a sequence",
+            type_name(value)
+        ))
+    })
 }
 
 /// A Python object's type name, for messages.

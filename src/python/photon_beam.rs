@@ -692,8 +692,7 @@ fn photon_selectivity_py<'py>(
     {
         vec![element_arg(elements)?]
     } else {
-        elements
-            .try_iter()?
+        super::convert::iter_arg("elements", elements)?
             .map(|e| Ok(element_arg(&e?)?))
             .collect::<PyResult<_>>()?
     };

@@ -127,7 +127,7 @@ fn evolve_batch<'py>(
 ) -> PyResult<Vec<Bound<'py, PyAny>>> {
     let mut traps: Vec<Bound<'py, PyBeamTrap>> = Vec::new();
     let mut elements: Vec<&'static Element> = Vec::new();
-    for case in cases.try_iter()? {
+    for case in super::convert::iter_arg("cases", cases)? {
         let case = case?;
         let pair = case
             .cast::<PyTuple>()

@@ -150,3 +150,21 @@ def test_evolution_on_a_single_time_answers_every_method(trap: cc.BeamTrap) -> N
     assert evo.peak(0) == (0.0, 1.0)
     assert evo.at(0.0)[0] == 1.0
     evo.plot()
+
+
+def test_sequence_arguments_name_the_parameter_and_numpy_scalars_are_one_charge() -> None:
+    # Found by the fuzz run (tests/fuzz/run.py, seed 15): bare "not iterable" TypeErrors.
+    trap = cc.BeamTrap(cc.ElectronBeam(8000.0, 0.1, current_density_a_cm2=300.0), 0.6)
+    scan = trap.best_energy("Ar", np.int64(16), [8000.0, 9000.0], [0.1, 1.0])
+    assert 0.0 < scan.best_fraction <= 1.0
+    with pytest.raises(cc.ArgumentTypeError, match="cases"):
+        cc.evolve_batch(None, [1.0])  # type: ignore[arg-type]
+    with pytest.raises(cc.ArgumentTypeError, match="elements"):
+        cc.photon_selectivity(1.0, 100.0)  # type: ignore[arg-type]
+    with pytest.raises(cc.ArgumentTypeError, match="elements"):
+        trap.sweep(1.5, "Ar", [1.0])  # type: ignore[arg-type]
+    evo = trap.evolve("Ar", [0.1, 1.0])
+    with pytest.raises(cc.ArgumentTypeError, match="threshold"):
+        evo.summary(threshold=np.array(["a", "b"]))
+    with pytest.raises(cc.ArgumentTypeError, match="label"):
+        cc.Evolution("Ar", [0.1], np.ones((1, 19)) / 19, label=0.5)  # type: ignore[arg-type]
