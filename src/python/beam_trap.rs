@@ -73,26 +73,6 @@ pub(crate) struct PyBeamTrap {
     pub(crate) inner: BeamTrap,
 }
 
-fn gas_arg(value: Option<&Bound<'_, PyAny>>) -> PyResult<Vec<(String, f64)>> {
-    let Some(value) = value.filter(|v| !v.is_none()) else {
-        return Ok(Vec::new());
-    };
-    let dict = value.cast::<PyDict>().map_err(|_| {
-        Error::invalid(
-            "residual_gas_pa",
-            type_name(value),
-            "must be a dict {formula: pressure_pa}",
-        )
-    })?;
-    dict.iter()
-        .map(|(k, v)| {
-            let name = k.str()?.to_string();
-            let p = float_arg(&format!("residual_gas_pa[{name:?}]"), &v)?;
-            Ok((name, p))
-        })
-        .collect()
-}
-
 fn processes_arg(value: Option<&Bound<'_, PyAny>>) -> PyResult<Processes> {
     let Some(value) = value.filter(|v| !v.is_none()) else {
         return Ok(Processes::default());
@@ -190,7 +170,11 @@ impl PyBeamTrap {
         })?;
         let mut builder =
             BeamTrap::builder(beam.get().inner.clone(), float_arg("length_m", length_m)?)
-                .residual_gas_pa(gas_arg(residual_gas_pa)?)
+                .residual_gas_pa(super::convert::float_dict_arg(
+                    "residual_gas_pa",
+                    residual_gas_pa,
+                    "must be a dict {formula: pressure_pa}",
+                )?)
                 .ion_temperature_ev(ion_temperature_ev)
                 .gas_temperature_k(gas_temperature_k)
                 .compensation(compensation)

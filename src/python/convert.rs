@@ -351,6 +351,28 @@ pub(crate) fn iter_arg<'py>(
     })
 }
 
+/// `{name: number}` pairs of an optional dict argument (None or absent: none), in the
+/// dict's order; `allowed` says what the parameter must be.
+pub(crate) fn float_dict_arg(
+    name: &str,
+    value: Option<&Bound<'_, PyAny>>,
+    allowed: &str,
+) -> PyResult<Vec<(String, f64)>> {
+    let Some(value) = value.filter(|v| !v.is_none()) else {
+        return Ok(Vec::new());
+    };
+    let dict = value
+        .cast::<pyo3::types::PyDict>()
+        .map_err(|_| Error::invalid(name, type_name(value), allowed))?;
+    dict.iter()
+        .map(|(k, v)| {
+            let key = k.str()?.to_string();
+            let x = float_arg(&format!("{name}[{key:?}]"), &v)?;
+            Ok((key, x))
+        })
+        .collect()
+}
+
 /// A Python object's type name, for messages.
 pub(crate) fn type_name(value: &Bound<'_, PyAny>) -> String {
     value

@@ -41,6 +41,19 @@ pub(crate) struct PySpecies {
     initial_charge: u32,
 }
 
+impl From<&plan::SpeciesEntry> for PySpecies {
+    fn from(s: &plan::SpeciesEntry) -> Self {
+        PySpecies {
+            name: s.name.clone(),
+            symbol: s.symbol.clone(),
+            z: s.z,
+            mass_number: s.mass_number,
+            amount: s.amount,
+            initial_charge: s.initial_charge,
+        }
+    }
+}
+
 /// Settings of the scenario's source; fields that do not apply to its kind are None.
 #[pyclass(name = "SourceSettings", module = "chargecast", frozen, get_all)]
 #[derive(Clone, Default)]
@@ -185,27 +198,12 @@ impl PyScenario {
     }
     #[getter]
     fn species(&self) -> Vec<PySpecies> {
-        self.inner
-            .species
-            .iter()
-            .map(|s| PySpecies {
-                name: s.name.clone(),
-                symbol: s.symbol.clone(),
-                z: s.z,
-                mass_number: s.mass_number,
-                amount: s.amount,
-                initial_charge: s.initial_charge,
-            })
-            .collect()
+        self.inner.species.iter().map(PySpecies::from).collect()
     }
     /// The species entry that provides the target isotope.
     #[getter]
     fn target_species(&self) -> PySpecies {
-        let name = &self.inner.target_species().name;
-        self.species()
-            .into_iter()
-            .find(|s| &s.name == name)
-            .expect("the target species is a species")
+        PySpecies::from(self.inner.target_species())
     }
     #[getter]
     fn source(&self) -> PySourceSettings {

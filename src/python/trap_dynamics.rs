@@ -7,7 +7,7 @@ use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
 use super::beam_trap::PyBeamTrap;
-use super::convert::{float_arg, times_arg};
+use super::convert::{float_dict_arg, times_arg};
 use super::{guard, matrix_to_py, to_py};
 use crate::error::Error;
 use crate::solve::stiff::StiffSystem;
@@ -15,29 +15,6 @@ use crate::sources::trap_dynamics::{
     DynamicRun, DynamicsSwitches, TrapDynamics, DEFAULT_AXIAL_BARRIER_V,
     DEFAULT_DRIFT_TUBE_RADIUS_M, DEFAULT_RTOL,
 };
-
-/// `{name: value}` of a dict of floats (species loads, partial pressures), in key order.
-fn float_dict(name: &str, value: Option<&Bound<'_, PyAny>>) -> PyResult<Vec<(String, f64)>> {
-    let Some(value) = value else {
-        return Ok(Vec::new());
-    };
-    let dict = value.cast::<PyDict>().map_err(|_| {
-        Error::invalid(
-            name,
-            super::convert::type_name(value),
-            "must be a dict of name to number",
-        )
-    })?;
-    let mut out = Vec::with_capacity(dict.len());
-    for (k, v) in dict.iter() {
-        let key: String = k
-            .extract()
-            .map_err(|_| Error::invalid(name, super::convert::type_name(&k), "keys must be str"))?;
-        let x = float_arg(&format!("{name}[{key:?}]"), &v)?;
-        out.push((key, x));
-    }
-    Ok(out)
-}
 
 fn switches(processes: Option<&Bound<'_, PyAny>>) -> PyResult<DynamicsSwitches> {
     let mut sw = DynamicsSwitches::default();
@@ -94,7 +71,11 @@ fn dynamics(
         &trap.inner,
         axial_barrier_v,
         drift_tube_radius_m,
-        &float_dict("gas_feed_pa", gas_feed_pa)?,
+        &float_dict_arg(
+            "gas_feed_pa",
+            gas_feed_pa,
+            "must be a dict {formula: pressure_pa}",
+        )?,
     )?;
     d.switches = switches(processes)?;
     if !(rtol.is_finite() && (1e-14..=1e-2).contains(&rtol)) {
@@ -257,7 +238,7 @@ fn _evolve_dynamic(
         dynamics,
         rtol,
     )?;
-    let loads = float_dict("species", Some(species))?;
+    let loads = float_dict_arg("species", Some(species), "must be a dict {species: atoms}")?;
     let times = times_arg(times_s)?;
     let core = trap.inner.clone();
     let inner = guard(py, || d.evolve(&core, &loads, &times))?;
@@ -286,7 +267,7 @@ fn _dynamic_system(
         dynamics,
         DEFAULT_RTOL,
     )?;
-    let loads = float_dict("species", Some(species))?;
+    let loads = float_dict_arg("species", Some(species), "must be a dict {species: atoms}")?;
     let system = d.system(&trap.inner, &loads)?;
     Ok(PyDynamicSystem { system })
 }

@@ -124,9 +124,6 @@ pub fn integrate_stiff<S: StiffSystem>(
         .map_err(solver_error)?;
     let mut solver = problem.bdf::<NalgebraLU<f64>>().map_err(solver_error)?;
     let (sol, _) = solver.solve_dense(later).map_err(solver_error)?;
-    if std::env::var_os("CHARGECAST_STIFF_STATS").is_some() {
-        eprintln!("stiff: {:?}", solver.get_statistics());
-    }
     for (k, _) in later.iter().enumerate() {
         for i in 0..n {
             out[[first + k, i]] = sol.get_index(i, k);
