@@ -428,7 +428,23 @@ impl PyBeamTrap {
                 .map(|e| Ok(element_arg(&e?)?))
                 .collect::<PyResult<_>>()?
         };
+        if els.is_empty() {
+            return Err(crate::error::Error::invalid(
+                "elements",
+                "[] (empty)",
+                "give at least one element",
+            )
+            .into());
+        }
         let e = array1_arg("energies_ev", energies_ev)?;
+        if e.is_empty() {
+            return Err(crate::error::Error::invalid(
+                "energies_ev",
+                "[] (empty)",
+                "give at least one energy",
+            )
+            .into());
+        }
         let t = times_arg(times_s)?;
         crate::error::require_all_positive("energies_ev", &e)?;
         let jobs: Vec<(usize, f64)> = (0..els.len())

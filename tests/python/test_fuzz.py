@@ -140,7 +140,6 @@ def test_trap_charges_and_feed(initial, target, feed, element) -> None:
 # so that the whole file stays within a few minutes.
 
 import random  # noqa: E402
-import re  # noqa: E402
 import sys  # noqa: E402
 from pathlib import Path  # noqa: E402
 
@@ -154,31 +153,8 @@ fuzz_calls.QUICK = True
 # Derandomized: CI sees the same calls every run; the long run explores.
 EVERY = settings(max_examples=150, deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
 
-# Defects found by this suite that belong to the input validation of the bindings (issue 15,
-# items 7 and 8), being fixed at the same time in that task: tolerated here by their exact
-# kind so that anything new still fails, and counted in full by the long run. Remove each
-# line when its fix lands; the long run's summary shows which still occur.
-KNOWN_ELSEWHERE = [
-    re.compile(p)
-    for p in (
-        r"^TypeError: must be real number, not ",  # bare float conversion (item 7)
-        r"^TypeError: '[\w.]+'( object)? is not "
-        r"(subscriptable|iterable|an instance of '(str|float|int|PyArray\w*)')",
-        r"^TypeError: only (0-dimensional|length-1) arrays can be converted",
-        r"^TypeError: (string|list|tuple) indices must be integers",  # rows of the spectrum classes (item 7)
-        r"^TypeError: Evolution objects are results",  # no parameter to name
-        r"^IndexError: ",  # empty or malformed grids and rows (item 7)
-        r"^KeyError: 'label'",  # ChargeStateRanking on malformed rows (item 7)
-        r"^AttributeError: '[\w.]+' object has no attribute '\w+'",  # beam= not checked (item 7)
-        r"^OverflowError: ",  # huge integers (item 7)
-        r"^result[\w.\[\]']*: NaN",  # NaN out for accepted input (item 8)
-    )
-]
-
 
 def assert_answer_or_documented(call: object, outcome: str, detail: str) -> None:
-    if outcome in ("undocumented", "bad") and any(p.search(detail) for p in KNOWN_ELSEWHERE):
-        return
     assert outcome in ("ok", "documented"), f"{outcome}: {detail} <- {call!r}"
 
 

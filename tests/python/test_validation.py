@@ -84,6 +84,14 @@ def test_empty_time_grid_is_refused(trap: cc.BeamTrap) -> None:
         cc.Evolution("Ar", [], np.zeros((0, 19)))
 
 
+def test_empty_sweep_axes_are_refused(trap: cc.BeamTrap) -> None:
+    # Found by the long fuzz run (seed 21): an empty element list ended in a bare ValueError.
+    with pytest.raises(InvalidParameterError, match="elements"):
+        trap.sweep([], [1000.0], [1e-3])
+    with pytest.raises(InvalidParameterError, match="energies_ev"):
+        trap.sweep(["Ar"], [], [1e-3])
+
+
 def test_duplicate_target_charges_are_refused(trap: cc.BeamTrap) -> None:
     e, t = np.linspace(2000.0, 8000.0, 4), np.geomspace(1e-3, 1.0, 10)
     single = trap.best_energy("Ar", [16], e, t)
