@@ -20,7 +20,7 @@ use std::ops::{Mul, Sub};
 
 use num_complex::Complex64;
 
-use super::radau::{COMPLEX_POLES, REAL_POLE};
+use super::radau::{StageOut, COMPLEX_POLES, REAL_POLE, STAGE_WEIGHTS};
 
 /// One value per pole of the rational step: the real pole and the two complex ones.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -225,7 +225,10 @@ impl BandPair {
     /// For each slot s in FIRST..2: out_s[i] = Σ_poles weight · ((p·I − h_s·M)⁻¹ h_s·f)[i]
     /// (FIRST = 0: both step sizes, FIRST = 1: the half step only). With FIRST = 0 also
     /// rate = R(h_1·M) f = Σ_poles c · ((p·I − h_1·M)⁻¹ f), from the same solves.
-    #[allow(clippy::needless_range_loop)] // slot loops index several arrays in lockstep
+    #[allow(clippy::needless_range_loop)]
+    // slot loops index several arrays in lockstep
+    // The outputs stay separate slices: the hot loop writes each directly.
+    #[allow(clippy::too_many_arguments)]
     pub fn combine<const FIRST: usize>(
         &mut self,
         h: [f64; 2],
@@ -234,6 +237,7 @@ impl BandPair {
         f: &[f64],
         out: [&mut [f64]; 2],
         rate: &mut [f64],
+        mut stages: StageOut<'_>,
     ) {
         let (n, p, q) = (self.m.n, self.m.lower, self.m.upper);
         let w = p + q + 1;
@@ -264,6 +268,13 @@ impl BandPair {
                 rate[i] = x[1].combine(rate_weights) * inv_h;
             }
             out1[i] = x[1].combine(weights);
+            for s in FIRST..2 {
+                if let Some(st) = stages[s].as_deref_mut() {
+                    for (j, w) in STAGE_WEIGHTS.iter().enumerate() {
+                        st[j][i] = x[s].combine(w);
+                    }
+                }
+            }
         }
     }
 }
@@ -359,7 +370,15 @@ pub(crate) mod tests {
             let mut pair = BandPair::new(m.clone(), &loss);
             pair.factor(h);
             let (mut full, mut half, mut rate) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
-            pair.combine::<0>(h, &weights, &weights, &f, [&mut full, &mut half], &mut rate);
+            pair.combine::<0>(
+                h,
+                &weights,
+                &weights,
+                &f,
+                [&mut full, &mut half],
+                &mut rate,
+                [None, None],
+            );
             for (slot, got) in [(0, &full), (1, &half)] {
                 let expected = dense_combine(&m, h[slot], &weights, &f);
                 for i in 0..n {

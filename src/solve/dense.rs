@@ -16,7 +16,7 @@ use num_complex::Complex64;
 use rayon::prelude::*;
 
 use super::banded::{BandMatrix, Poles};
-use super::radau::{COMPLEX_POLES, REAL_POLE};
+use super::radau::{StageOut, COMPLEX_POLES, REAL_POLE, STAGE_WEIGHTS};
 use crate::error::Result;
 use crate::interrupt;
 use crate::limits::try_vec;
@@ -211,6 +211,8 @@ impl HessenbergPair {
     }
 
     /// Same contract as [`BandPair::combine`](super::banded::BandPair::combine).
+    // The outputs stay separate slices: the hot loop writes each directly.
+    #[allow(clippy::too_many_arguments)]
     pub fn combine<const FIRST: usize>(
         &mut self,
         h: [f64; 2],
@@ -219,6 +221,7 @@ impl HessenbergPair {
         f: &[f64],
         out: [&mut [f64]; 2],
         rate: &mut [f64],
+        mut stages: StageOut<'_>,
     ) {
         let n = self.n;
         self.work.copy_from_slice(f);
@@ -248,6 +251,18 @@ impl HessenbergPair {
                 for (t, x) in target.iter_mut().zip(&self.solve) {
                     *t += (w[pole] * x).re;
                 }
+                if let Some(st) = stages[s].as_deref_mut() {
+                    for (j, sw) in STAGE_WEIGHTS.iter().enumerate() {
+                        let weight =
+                            [Complex64::new(sw.real, 0.0), sw.complex[0], sw.complex[1]][pole];
+                        if pole == 0 {
+                            st[j].iter_mut().for_each(|x| *x = 0.0);
+                        }
+                        for (t, x) in st[j].iter_mut().zip(&self.solve) {
+                            *t += (weight * x).re;
+                        }
+                    }
+                }
                 if s == 1 && FIRST == 0 {
                     for (t, x) in sum_rate.iter_mut().zip(&self.solve) {
                         *t += (rw[pole] * x).re / h[1];
@@ -264,6 +279,13 @@ impl HessenbergPair {
         }
         Self::apply_q(&self.reflectors, sum1, false);
         out1.copy_from_slice(sum1);
+        for st in stages.iter_mut().skip(FIRST) {
+            if let Some(st) = st.as_deref_mut() {
+                for stage in st.iter_mut() {
+                    Self::apply_q(&self.reflectors, stage, false);
+                }
+            }
+        }
     }
 }
 
@@ -285,7 +307,15 @@ mod tests {
         let mut pair = HessenbergPair::new(&m).unwrap();
         pair.factor(h);
         let (mut full, mut half, mut rate) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
-        pair.combine::<0>(h, &weights, &weights, &f, [&mut full, &mut half], &mut rate);
+        pair.combine::<0>(
+            h,
+            &weights,
+            &weights,
+            &f,
+            [&mut full, &mut half],
+            &mut rate,
+            [None, None],
+        );
         for (slot, got) in [(0, &full), (1, &half)] {
             let expected = dense_combine(&m, h[slot], &weights, &f);
             let scale = expected.iter().map(|v| v.abs()).fold(1.0, f64::max);

@@ -3,8 +3,9 @@
 //! * [`evolve`]: L-stable rational time stepping, N ↦ R(hM)N with R the (4,5) Padé
 //!   approximant of exp (the stability function of five-stage Radau IIA, order 9), evaluated
 //!   by partial fractions as one real and two complex shifted solves per step; error control
-//!   by step doubling at a local tolerance of 1e-13 of the total population; every output
-//!   time is hit exactly (see `radau`). The rate M N + s is summed with compensation
+//!   by step doubling at a local tolerance of 1e-13 of the total population; outputs inside
+//!   a step come from the Radau collocation polynomial (dense output, error ≤ 1e-11 of the
+//!   total; see `radau`). The rate M N + s is summed with compensation
 //!   (`flux`). States that the initial populations and feeds cannot reach are left out (they
 //!   stay exactly zero), and outputs for which ‖M N + s‖₁·Δt is below the tolerance are
 //!   served without stepping. Negative round-off down to 1e-15 of the total population is

@@ -8,7 +8,7 @@
 #![allow(clippy::needless_range_loop)]
 
 use super::banded::{BandMatrix, Poles};
-use super::radau::{COMPLEX_POLES, REAL_POLE};
+use super::radau::{StageOut, COMPLEX_POLES, REAL_POLE, STAGE_WEIGHTS};
 
 /// Real lanes: the real pole for [h, h/2]. Complex lanes: (h, p₁), (h, p₂), (h/2, p₁),
 /// (h/2, p₂).
@@ -99,6 +99,8 @@ impl ChainPair {
     /// For each slot s in FIRST..2: out_s[i] = Σ_poles weight · ((p·I − h_s·M)⁻¹ h_s·f)[i]
     /// (FIRST = 0: both step sizes, FIRST = 1: the half step only). With FIRST = 0 also
     /// rate = R(h_1·M) f = Σ_poles c · ((p·I − h_1·M)⁻¹ f), from the same solves.
+    // The outputs stay separate slices: the hot loop writes each directly.
+    #[allow(clippy::too_many_arguments)]
     pub fn combine<const FIRST: usize>(
         &mut self,
         h: [f64; 2],
@@ -107,6 +109,7 @@ impl ChainPair {
         f: &[f64],
         out: [&mut [f64]; 2],
         rate: &mut [f64],
+        mut stages: StageOut<'_>,
     ) {
         let n = self.loss.len();
         let hc = SLOT.map(|s| h[s]);
@@ -128,6 +131,9 @@ impl ChainPair {
         let weight_im = [0, 1].map(|k| weights.complex[k].im);
         let rate_re = [0, 1].map(|k| rate_weights.complex[k].re);
         let rate_im = [0, 1].map(|k| rate_weights.complex[k].im);
+        let stage_real = STAGE_WEIGHTS.map(|w| w.real);
+        let stage_re = STAGE_WEIGHTS.map(|w| [w.complex[0].re, w.complex[1].re]);
+        let stage_im = STAGE_WEIGHTS.map(|w| [w.complex[0].im, w.complex[1].im]);
         let mut x = Lanes::default();
         let [out0, out1] = out;
         let inv_h = 1.0 / h[1];
@@ -152,6 +158,13 @@ impl ChainPair {
                 rate[i] = slot(1, rate_weights.real, rate_re, rate_im) * inv_h;
             }
             out1[i] = slot(1, weights.real, weight_re, weight_im);
+            for s in FIRST..2 {
+                if let Some(st) = stages[s].as_deref_mut() {
+                    for j in 0..4 {
+                        st[j][i] = slot(s, stage_real[j], stage_re[j], stage_im[j]);
+                    }
+                }
+            }
         }
     }
 }
@@ -181,9 +194,25 @@ mod tests {
         for both in [true, false] {
             let (mut a, mut b, mut r) = (vec![0.0; n], vec![0.0; n], vec![0.0; n]);
             if both {
-                chain.combine::<0>(h, &weights, &weights, &f, [&mut a, &mut b], &mut r);
+                chain.combine::<0>(
+                    h,
+                    &weights,
+                    &weights,
+                    &f,
+                    [&mut a, &mut b],
+                    &mut r,
+                    [None, None],
+                );
             } else {
-                band.combine::<0>(h, &weights, &weights, &f, [&mut a, &mut b], &mut r);
+                band.combine::<0>(
+                    h,
+                    &weights,
+                    &weights,
+                    &f,
+                    [&mut a, &mut b],
+                    &mut r,
+                    [None, None],
+                );
             }
             results.push((a, b, r));
         }
@@ -204,6 +233,7 @@ mod tests {
             &f,
             [&mut unused, &mut half],
             &mut rate,
+            [None, None],
         );
         assert_eq!(half, results[0].1);
     }
