@@ -52,7 +52,7 @@
 //! the embedded half-lives (mendeleev 1.3.0).
 
 use super::beam_trap::BeamTrap;
-use crate::atoms::{element_by_z, DecayMode, Element};
+use crate::atoms::{element_by_z, parse_species, DecayMode, Element, Species};
 use crate::error::{require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::solve::evolve;
@@ -63,6 +63,9 @@ use crate::solve::evolve;
 pub const DEFAULT_CAPTURE_EFFICIENCY: f64 = 0.5;
 /// Most nuclides followed along the decay chains when none is given.
 pub const DEFAULT_MAX_NUCLIDES: usize = 8;
+/// Largest `max_nuclides` accepted: 32 nuclides of up to 100 charge states keep the
+/// coupled network at a few thousand states.
+pub const MAX_CHAIN_NUCLIDES: usize = 32;
 
 /// How many ions arrive.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -163,11 +166,11 @@ impl BreedingCycle {
             ));
         }
         el.check_charge(i64::from(injected_charge), el.z())?;
-        if max_nuclides == 0 {
+        if !(1..=MAX_CHAIN_NUCLIDES).contains(&max_nuclides) {
             return Err(Error::invalid(
                 "max_nuclides",
-                0,
-                "must be at least 1 (the injected nuclide)",
+                max_nuclides,
+                &format!("must be 1 (the injected nuclide alone) ..= {MAX_CHAIN_NUCLIDES}"),
             ));
         }
         Ok(BreedingCycle {
@@ -193,6 +196,22 @@ impl BreedingCycle {
             Injection::PerSecond(r) => r * self.period_s(),
             Injection::PerBunch(n) => n,
         }
+    }
+}
+
+/// (Z, A) of an isotope named as the species parser reads it ("97Rb", "Rb-97"); an element
+/// alone (its natural mix) is refused, the cycle needs one nuclide.
+pub fn nuclide(spec: &str) -> Result<(u32, u32)> {
+    match parse_species(spec)? {
+        Species::Isotope(el, iso) => Ok((el.z(), iso.mass_number)),
+        Species::Natural(el) => Err(Error::invalid(
+            "isotope",
+            format!("{spec:?}"),
+            &format!(
+                "give one isotope with its mass number, e.g. \"97{}\" (not the natural mix of an element)",
+                el.symbol()
+            ),
+        )),
     }
 }
 
