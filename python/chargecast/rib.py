@@ -28,6 +28,18 @@ class BreedingCycle(_core.BreedingCycle):
         Fraction of the injected ions that leave in each charge state of the injected nuclide.
     trapped, decayed, lost : ndarray, shape (T,)
         Bookkeeping per bunch at each time; they add up to ``ions_per_bunch``.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> beam = cc.ElectronBeam(energy_ev=1300.0, current_a=0.05, radius_m=70e-6)
+    >>> trap = cc.BeamTrap(beam, 0.8)
+    >>> run = cc.breeding_cycle(trap, "97Rb", repetition_rate_hz=20.0, ions_per_bunch=1e4, max_nuclides=2)
+    >>> run.nuclides
+    ['97Rb', '97Sr']
+    >>> q, per_s = run.best_charge()
+    >>> bool(per_s == run.extracted_per_s("97Rb")[q])
+    True
     """
 
     def best_charge(self) -> tuple[int, float]:
