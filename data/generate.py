@@ -164,6 +164,86 @@ def isotopes() -> None:
     )
 
 
+# Half-life units of mendeleev's isotope table, in seconds (year: Julian year, 365.25 d).
+_YEAR_S = 365.25 * 86400.0
+HALF_LIFE_UNIT_S = {
+    "ysec": 1e-24, "zsec": 1e-21, "asec": 1e-18, "fsec": 1e-15, "psec": 1e-12, "nsec": 1e-9,
+    "usec": 1e-6, "msec": 1e-3, "sec": 1.0, "minute": 60.0, "hour": 3600.0, "day": 86400.0,
+    "year": _YEAR_S, "kyear": 1e3 * _YEAR_S, "Myear": 1e6 * _YEAR_S, "Gyear": 1e9 * _YEAR_S,
+    "Tyear": 1e12 * _YEAR_S, "Pyear": 1e15 * _YEAR_S, "Eyear": 1e18 * _YEAR_S,
+    "Zyear": 1e21 * _YEAR_S, "Yyear": 1e24 * _YEAR_S,
+}
+# Primary decay modes kept as channels (mendeleev code -> our name); every other primary
+# mode (fission, particle emission, double beta, clusters) is the channel "other".
+PRIMARY_MODES = {"B-": "beta-", "B+": "beta+/EC", "EC": "beta+/EC", "EC+B+": "beta+/EC",
+                 "A": "alpha", "IT": "IT"}
+# Beta-delayed particle emission: a sub-branch of its beta mode (ENSDF convention: the
+# delayed branch is a percentage of all decays, included in the beta intensity).
+DELAYED_MODES = {"B-n": ("beta-", "beta-n"), "B+p": ("beta+/EC", "beta+/EC p")}
+SUB_BRANCH_PREFIXES = ("B-", "B+")
+
+
+def decays() -> None:
+    iso = fetch_table("isotopes").sort_values(["atomic_number", "mass_number"])
+    modes = fetch_table("isotopedecaymodes")
+    by_isotope: dict[int, list] = {}
+    for r in modes.itertuples():
+        by_isotope.setdefault(int(r.isotope_id), []).append(r)
+    rows = []
+    for r in iso.itertuples():
+        if r.is_radioactive != 1:
+            continue
+        half_life_s = None
+        if r.half_life is not None and not math.isnan(r.half_life):
+            half_life_s = float(f"{float(r.half_life) * HALF_LIFE_UNIT_S[r.half_life_unit]:.6g}")
+        channels: dict[str, float] = {}
+        delayed: dict[str, float] = {}
+        for m in by_isotope.get(int(r.id), []):
+            # Only measured branchings ("=" or "~"); limits and allowed-not-observed modes
+            # carry no usable number.
+            if m.relation not in ("=", "~") or m.intensity is None or math.isnan(m.intensity):
+                continue
+            if m.is_allowed_not_observed == 1:
+                continue
+            share = float(m.intensity) / 100.0
+            if m.mode in DELAYED_MODES:
+                delayed[m.mode] = share
+            elif m.mode in PRIMARY_MODES:
+                name = PRIMARY_MODES[m.mode]
+                channels[name] = channels.get(name, 0.0) + share
+            elif not m.mode.startswith(SUB_BRANCH_PREFIXES) and m.mode not in ("e+",):
+                channels["other"] = channels.get("other", 0.0) + share
+        for code, share in delayed.items():
+            parent, name = DELAYED_MODES[code]
+            if parent in channels:
+                moved = min(share, channels[parent])
+                channels[parent] -= moved
+                channels[name] = moved
+        total = sum(channels.values())
+        text = ""
+        if total > 0:
+            text = ";".join(
+                f"{k}:{v / total:.6g}" for k, v in sorted(channels.items()) if v / total > 0
+            )
+        rows.append([int(r.atomic_number), int(r.mass_number), half_life_s, text])
+    write(
+        "decays.csv",
+        [
+            "Radioactive isotopes (ground states): half-life (s; year = 365.25 d) and decay channels",
+            "with branching fractions normalised to 1 (channel:fraction;...). Channels: beta-, beta-n",
+            "(beta-delayed neutron), beta+/EC, beta+/EC p (beta-delayed proton), alpha, IT, other",
+            "(fission, particle and cluster emission, double beta). Delayed-particle branches are",
+            "taken out of their beta branch (ENSDF convention). Only measured branchings ('=', '~').",
+            "Empty half_life_s or decay_modes: not known in the source.",
+            "Intensities are taken as mendeleev gives them (it lists 238U fission at 5.44 %; the",
+            "evaluated value is about 5e-5 %, from memory): 'other' shares of heavy nuclides can be high.",
+            f"Source: mendeleev {mendeleev.__version__} (tables 'isotopes' and 'isotopedecaymodes').",
+        ],
+        ["z", "mass_number", "half_life_s", "decay_modes"],
+        rows,
+    )
+
+
 def elam_jumps(z: int, nominal_ev: float) -> list[float]:
     """Where mu_elam actually jumps near a nominal edge energy (the Elam tables place some
     edges a little away from xray_edges' value, and spin-orbit partners lie close by): every
@@ -217,10 +297,19 @@ def photoabsorption() -> None:
     )
 
 
+TABLES = {
+    "elements": elements,
+    "ionization_energies": ionization_energies,
+    "xray_levels": xray_levels,
+    "coster_kronig": coster_kronig,
+    "isotopes": isotopes,
+    "decays": decays,
+    "photoabsorption": photoabsorption,
+}
+
 if __name__ == "__main__":
-    elements()
-    ionization_energies()
-    xray_levels()
-    coster_kronig()
-    isotopes()
-    photoabsorption()
+    import sys
+
+    # `python data/generate.py decays isotopes` rewrites only the named tables.
+    for table in sys.argv[1:] or list(TABLES):
+        TABLES[table]()

@@ -14,7 +14,7 @@ const REFERENCE: &str = include_str!("../python/chargecast/scenarios/reference.t
 
 /// Tables of the schema as the parser knows them (`""` is the top level). A map table
 /// (`residual_gas_pa`, keyed by gas formula) has no fixed fields and is left out here.
-const TABLES: [&str; 9] = [
+const TABLES: [&str; 10] = [
     "",
     "target",
     "species",
@@ -24,6 +24,7 @@ const TABLES: [&str; 9] = [
     "time",
     "energy_scan",
     "separator",
+    "injection",
 ];
 
 type Fields = BTreeMap<String, BTreeSet<String>>;

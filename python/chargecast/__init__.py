@@ -79,6 +79,10 @@ from chargecast.spectrum import (
     overlaps,
 )
 
+# --- radioactive-beam breeding cycle and residual-gas ions from pressures
+# isort: split
+from chargecast.rib import BreedingCycle, breeding_cycle, residual_gas_ions
+
 # --- scenario files and reports
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
@@ -141,4 +145,7 @@ __all__ = [
     "Scenario",
     "bundled_scenarios",
     "load_scenario",
+    "BreedingCycle",
+    "breeding_cycle",
+    "residual_gas_ions",
 ]

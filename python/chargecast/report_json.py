@@ -67,7 +67,6 @@ def scenario_dict(scenario: Any) -> dict[str, Any]:
                 "relative_half_width",
                 "window_fwhm",
                 "aq_range",
-                "residual_amount",
             ),
         ),
     }
@@ -107,6 +106,7 @@ def to_dict(report: Any) -> dict[str, Any]:
         "evolution": None,
         "best_energy": None,
         "ions_per_extraction": None,
+        "injection": None,
         "aq_neighbourhood": None,
         "charge_state_ranking": None,
         "recommended_charge_state": None
@@ -188,6 +188,27 @@ def to_dict(report: Any) -> dict[str, Any]:
             "per_charge": {f"{q}+": float(n) for q, n in enumerate(d.per_charge) if n >= 0.5},
             "target": d.target,
             "all_charges": d.all_charges,
+        }
+    c = r.injection
+    if c is not None:
+        out["injection"] = {
+            "ions_per_bunch": c.ions_per_bunch,
+            "repetition_rate_hz": c.repetition_rate_hz,
+            "breeding_time_s": c.breeding_time_s,
+            "decayed_before_injection": c.decayed_before_injection,
+            "not_captured": c.not_captured,
+            "extracted_per_bunch": float(c.trapped[-1]),
+            "decayed_per_bunch": float(c.decayed[-1]),
+            "lost_per_bunch": float(c.lost[-1]),
+            "efficiency": {f"{q}+": float(e) for q, e in enumerate(c.efficiency) if e > 0},
+            "nuclides": [
+                {
+                    "nuclide": name,
+                    "half_life_s": half,
+                    "ions_per_s": {f"{q}+": float(n) for q, n in enumerate(c.extracted_per_s(name)) if n > 0},
+                }
+                for name, half in zip(c.nuclides, c.half_lives_s)
+            ],
         }
     o = r.neighbourhood
     out["aq_neighbourhood"] = None if o is None else _neighbourhood(o)

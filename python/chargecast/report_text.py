@@ -101,6 +101,7 @@ class _TextReport:
         out += self.evolution()
         out += self.best_energy()
         out += self.ions()
+        out += self.injection()
         out += self.neighbourhood()
         out += self.recommendation()
         if r.warnings:
@@ -365,6 +366,52 @@ class _TextReport:
         )
         return out
 
+    def injection(self) -> list[str]:
+        c = self.r.injection
+        if c is None:
+            return []
+        t, q = self.s.target, self.q
+        parent = c.nuclides[0]
+        eff = c.efficiency
+        out = [
+            "",
+            f"Radioactive-beam cycle: {c.ions_per_bunch:.3e} {parent} ions per bunch at "
+            f"{c.repetition_rate_hz:.4g} Hz, bred {c.breeding_time_s:.4g} s",
+            f"  per bunch: decayed before injection {c.decayed_before_injection:.3e}, not captured "
+            f"{c.not_captured:.3e}; at extraction: extracted {c.trapped[-1]:.3e}, decayed in the trap "
+            f"{c.decayed[-1] - c.decayed_before_injection:.3e}, lost {c.lost[-1] - c.not_captured:.3e}",
+            f"  bookkeeping: extracted + decayed + lost = {c.trapped[-1] + c.decayed[-1] + c.lost[-1]:.6e} "
+            f"of {c.ions_per_bunch:.6e} injected",
+        ]
+        rows = []
+        for name, half in zip(c.nuclides, c.half_lives_s):
+            per_s = c.extracted_per_s(name)
+            total = float(per_s.sum())
+            if total <= 0:
+                continue
+            best = int(per_s.argmax())
+            at_q = float(per_s[q]) if q < len(per_s) else 0.0
+            rows.append(
+                [
+                    name,
+                    "stable" if half is None else f"{half:.4g} s",
+                    f"{total:.3e}",
+                    f"{at_q:.3e}",
+                    f"{best}+",
+                ]
+            )
+        out += _table(["nuclide", "half-life", "ions/s (all q)", f"ions/s at {q}+", "most ions"], rows)
+        best, best_per_s = c.best_charge()
+        out.append(
+            f"  {t.isotope}{q}+: {float(c.extracted_per_s(parent)[q]):.3e} ions/s, efficiency "
+            f"{float(eff[q]) * 100:.3g} % of the injected ions; most ions in {best}+: "
+            f"{best_per_s:.3e} ions/s ({float(eff[best]) * 100:.3g} %)"
+        )
+        out.append(
+            "  decay daughters are bred alongside and sit in the A/q spectrum as isobaric contaminants"
+        )
+        return out
+
     def neighbourhood(self) -> list[str]:
         o = self.r.neighbourhood
         if o is None:
@@ -373,7 +420,7 @@ class _TextReport:
             "ion",
             "m/q (u/e)",
             "A/q",
-            "intensity",
+            "ions per extraction" if self.r.ions is not None else "intensity",
             "Δ(m/q)",
             "sep. (FWHM)",
             "contamination",

@@ -26,7 +26,10 @@ Top level
     has one natural isotope, e.g. ``"Bi"``); ``charge`` -- the wanted charge state, 1 … Z.
 ``[[species]]`` (optional, repeatable; default: the target isotope alone)
     ``name`` -- element (``"Ne"``, natural isotopic mix) or isotope (``"22Ne"``);
-    ``amount`` -- relative amount > 0 (default 1; only ratios matter);
+    ``amount`` -- amount > 0 (default 1): in a beam trap only ratios matter (the species
+    share the compensated space charge in proportion to amount × mean charge, so the A/q
+    spectrum holds absolute ions per extraction); for a photon beam or a single collision
+    it is the species' partial pressure (Pa), on the scale of the residual-gas partial pressures;
     ``initial_charge`` -- charge state in which it enters the source, 0 … Z−1 (default 0,
     neutral atoms). One species must provide the target isotope.
 Source: exactly one of
@@ -49,8 +52,10 @@ Source: exactly one of
     collision per atom: ``energy_ev``, ``energy_spread_ev`` (0). Species enter neutral.
 ``[residual_gas_pa]`` (optional)
     Partial pressures (Pa) by formula: H2, He, N2, O2, CO, CO2, H2O, CH4, Ne, Ar, Kr, Xe.
-    Drives charge exchange in a trap; its elements appear in the A/q spectrum, with
-    ``residual_amount`` of ``[separator]`` (no residual-gas lines without this table).
+    Drives charge exchange in a trap; its elements appear in the A/q spectrum: in a beam
+    trap as absolute ions per extraction (gas density × beam volume × Lotz ionization of
+    each atom, bred over the extraction time), otherwise weighted by the partial pressure
+    of their atoms (no residual-gas lines without this table).
 ``[time]`` (optional)
     Log-spaced confinement times: ``start_s`` (stop_s × 1e-5), ``stop_s`` (twenty times
     the stepwise breeding time of the target in a trap, rounded up to a power of ten;
@@ -64,8 +69,17 @@ Source: exactly one of
     ``"triangular"`` or ``"rectangular"``), the acceptance window around each charge
     state: ``aq_half_width`` (u/e) or ``relative_half_width`` (fraction of m/q), else
     ``window_fwhm`` (1) FWHM wide; ``aq_range`` = [lowest, highest] A/q accepted
-    downstream (optional: limits the recommended charge state); ``residual_amount`` (0.05,
-    residual-gas ions relative to the species' ions in the A/q spectrum).
+    downstream (optional: limits the recommended charge state).
+``[injection]`` (optional, beam trap only)
+    Radioactive-beam breeding cycle of the target isotope: ``repetition_rate_hz``
+    (required, extractions per second); exactly one of ``ions_per_s`` (continuous 1+ beam,
+    accumulated upstream between injections) or ``ions_per_bunch``;
+    ``capture_efficiency`` (0.5, fraction of each bunch captured); ``breeding_time_s``
+    (the time table's extraction_s, else 1/repetition_rate_hz; becomes the extraction time);
+    ``isotope`` (the target isotope; must be it); ``injected_charge`` (1);
+    ``daughter_charge`` (``"parent"``: daughters enter at the parent's charge state, or
+    ``"electrons_kept"``); ``max_nuclides`` (8, nuclides followed along the decay chains).
+    The decay daughters appear in the A/q spectrum as isobaric contaminants.
 
 Limits
     A scenario file holds at most 1 MiB (``chargecast._core.MAX_SCENARIO_BYTES``; a longer

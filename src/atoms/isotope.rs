@@ -1,5 +1,9 @@
-//! Isotopes: atomic masses (AME2020) and natural abundances (IUPAC), via mendeleev.
+//! Isotopes: atomic masses (AME2020) and natural abundances (IUPAC), via mendeleev, with
+//! the half-lives and decay channels of [`super::decay`].
 
+use std::collections::HashMap;
+
+use super::decay::{read_decays, Decay};
 use super::element::Element;
 use super::table::{self, parse_f64, parse_u32};
 use crate::error::Result;
@@ -12,10 +16,23 @@ pub struct Isotope {
     pub mass_u: f64,
     /// Natural abundance as a mole fraction; None when it does not occur naturally.
     pub abundance: Option<f64>,
+    /// Half-life and decay channels; None for a stable nuclide.
+    pub decay: Option<Decay>,
+}
+
+impl Isotope {
+    /// Half-life in s; None for a stable nuclide or where the data give none.
+    pub fn half_life_s(&self) -> Option<f64> {
+        self.decay.as_ref().and_then(|d| d.half_life_s)
+    }
 }
 
 pub(crate) fn read_isotopes(elements: &mut [Element]) -> Result<()> {
     const NAME: &str = "isotopes.csv";
+    let mut decays: HashMap<(u32, u32), Decay> = read_decays()?
+        .into_iter()
+        .map(|(z, a, d)| ((z, a), d))
+        .collect();
     for row in table::rows(
         NAME,
         table::ISOTOPES_CSV,
@@ -23,9 +40,11 @@ pub(crate) fn read_isotopes(elements: &mut [Element]) -> Result<()> {
     )? {
         let z = parse_u32(NAME, row[0])?;
         let abundance = parse_f64(NAME, row[3])?;
+        let mass_number = parse_u32(NAME, row[1])?;
         let iso = Isotope {
             z,
-            mass_number: parse_u32(NAME, row[1])?,
+            mass_number,
+            decay: decays.remove(&(z, mass_number)),
             mass_u: parse_f64(NAME, row[2])?,
             abundance: (!abundance.is_nan()).then_some(abundance),
         };

@@ -8,9 +8,11 @@
 //! fluorescence and Coster–Kronig yields and photoabsorption from Elam, Ravel & Sieber,
 //! Radiat. Phys. Chem. 63, 121 (2002) and Krause & Oliver (1979) (via xraydb, Z = 1–98);
 //! isotope masses from AME2020 (M. Wang et al., Chin. Phys. C 45, 030003 (2021)) and IUPAC
-//! abundances (via mendeleev).
+//! abundances (via mendeleev); half-lives and decay channels of radioactive nuclides (via
+//! mendeleev, see [`decay`]).
 
 pub mod binding;
+pub mod decay;
 mod element;
 mod isotope;
 mod species;
@@ -18,6 +20,7 @@ mod subshell;
 pub(crate) mod table;
 mod xray;
 
+pub use decay::{Decay, DecayMode};
 pub use element::{all_elements, element, element_by_z, Element, EnergyKind};
 pub use isotope::Isotope;
 pub use species::{isotope_label, parse_species, resolve_isotope, split_species, Species};

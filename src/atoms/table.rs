@@ -57,4 +57,5 @@ pub(crate) const IONIZATION_CSV: &str = include_str!("../../data/ionization_ener
 pub(crate) const XRAY_LEVELS_CSV: &str = include_str!("../../data/xray_levels.csv");
 pub(crate) const COSTER_KRONIG_CSV: &str = include_str!("../../data/coster_kronig.csv");
 pub(crate) const ISOTOPES_CSV: &str = include_str!("../../data/isotopes.csv");
+pub(crate) const DECAYS_CSV: &str = include_str!("../../data/decays.csv");
 pub(crate) const PHOTOABSORPTION_CSV: &str = include_str!("../../data/photoabsorption.csv");

@@ -18,6 +18,10 @@ use crate::sources::beam_trap::{
     Processes, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
 };
 use crate::sources::electron_beam::BeamSize;
+use crate::sources::rib_cycle::{
+    nuclide, BreedingCycle, DaughterCharge, Injection, DEFAULT_CAPTURE_EFFICIENCY,
+    DEFAULT_MAX_NUCLIDES,
+};
 
 /// (name, value) pairs in file or alphabetical order.
 type Pairs = Vec<(String, f64)>;
@@ -137,7 +141,8 @@ impl Checker<'_, '_> {
         let (residual_gas_pa, residual_elements) = self.residual_gas(raw.residual_gas_pa)?;
         // The core source checks its own ranges (compensation, temperatures, beam size).
         self.build(&source, &residual_gas_pa)?;
-        let time = self.time(raw.time, &source, &target)?;
+        let mut time = self.time(raw.time, &source, &target)?;
+        let injection = self.injection(raw.injection, &source, &target, &mut time)?;
         let energy_scan = self.energy_scan(raw.energy_scan, &source, &target)?;
         let separator = self.separator(raw.separator)?;
         self.size(&species, &target, &time, &energy_scan)?;
@@ -163,6 +168,7 @@ impl Checker<'_, '_> {
             time,
             energy_scan,
             separator,
+            injection,
             lines,
         })
     }
@@ -631,12 +637,101 @@ impl Checker<'_, '_> {
                 "FWHM",
             )?,
             aq_range,
-            residual_amount: self.non_negative(
-                "separator.residual_amount",
-                raw.residual_amount.unwrap_or(DEFAULT_RESIDUAL_AMOUNT),
-                "relative amount",
-            )?,
         })
+    }
+
+    /// The `[injection]` table: the core cycle checks every value (named `injection.…`);
+    /// the breeding time becomes the extraction time, so it must lie on the time grid.
+    fn injection(
+        &self,
+        raw: Option<RawInjection>,
+        source: &SourceSettings,
+        target: &Target,
+        time: &mut TimeGrid,
+    ) -> Result<Option<BreedingCycle>> {
+        let Some(raw) = raw else { return Ok(None) };
+        if !matches!(source, SourceSettings::BeamTrap(_)) {
+            return Err(self.err(
+                "injection",
+                "a breeding cycle needs a [beam_trap] source (the ions are captured and bred in the trap)",
+            ));
+        }
+        let (z, a) = match &raw.isotope {
+            Some(spec) => self.wrap("injection.isotope", nuclide(spec))?,
+            None => (target.z, target.mass_number),
+        };
+        if (z, a) != (target.z, target.mass_number) {
+            return Err(self.err(
+                "injection.isotope",
+                format!(
+                    "the injected isotope must be the target isotope {} (the plan ranks its charge states)",
+                    target.isotope
+                ),
+            ));
+        }
+        let injection = match (raw.ions_per_s, raw.ions_per_bunch) {
+            (Some(r), None) => {
+                Injection::PerSecond(self.positive("injection.ions_per_s", r, "ions/s")?)
+            }
+            (None, Some(n)) => {
+                Injection::PerBunch(self.positive("injection.ions_per_bunch", n, "ions")?)
+            }
+            _ => {
+                return Err(self.err(
+                    "injection.ions_per_s",
+                    "give exactly one of ions_per_s (a continuous 1+ beam) or ions_per_bunch",
+                ))
+            }
+        };
+        let rate = self.positive("injection.repetition_rate_hz", raw.repetition_rate_hz, "Hz")?;
+        let breeding = match raw.breeding_time_s {
+            Some(t) => self.positive("injection.breeding_time_s", t, "s")?,
+            None => time.extraction_s.unwrap_or(1.0 / rate),
+        };
+        if !(time.start_s..=time.stop_s).contains(&breeding) {
+            return Err(self.err(
+                "injection.breeding_time_s",
+                format!(
+                    "{breeding} s must lie within the time grid {} … {} s (it is the extraction time)",
+                    time.start_s, time.stop_s
+                ),
+            ));
+        }
+        let charge = raw.injected_charge.unwrap_or(1);
+        let charge = u32::try_from(charge).map_err(|_| {
+            self.err(
+                "injection.injected_charge",
+                format!("{charge}: allowed 0..=Z"),
+            )
+        })?;
+        let max = raw.max_nuclides.unwrap_or(DEFAULT_MAX_NUCLIDES as i64);
+        // Range checked by the core cycle; a negative count is refused here.
+        let max = usize::try_from(max).map_err(|_| {
+            self.err(
+                "injection.max_nuclides",
+                format!("{max}: allowed a whole number >= 1"),
+            )
+        })?;
+        let daughter = self.wrap(
+            "injection.daughter_charge",
+            DaughterCharge::parse(raw.daughter_charge.as_deref().unwrap_or("parent")),
+        )?;
+        let cycle = self.wrap(
+            "injection",
+            BreedingCycle::new(
+                z,
+                a,
+                injection,
+                raw.capture_efficiency.unwrap_or(DEFAULT_CAPTURE_EFFICIENCY),
+                rate,
+                breeding,
+                charge,
+                daughter,
+                max,
+            ),
+        )?;
+        time.extraction_s = Some(breeding);
+        Ok(Some(cycle))
     }
 }
 

@@ -17,8 +17,6 @@ pub const DEFAULT_PEAK_SHAPE: &str = "gaussian";
 pub const DEFAULT_RESOLVING_POWER: f64 = 200.0;
 /// Acceptance window width in FWHM when no half-width is given.
 pub const DEFAULT_WINDOW_FWHM: f64 = 1.0;
-/// Residual-gas ions relative to the species' ions in the A/q spectrum.
-pub const DEFAULT_RESIDUAL_AMOUNT: f64 = 0.05;
 /// Relative amount of a species.
 pub const DEFAULT_AMOUNT: f64 = 1.0;
 /// Points of the time grid.

@@ -33,6 +33,9 @@ pub const SEARCH_FWHM: f64 = 3.0;
 pub const RESIDUAL_AGE_START: f64 = 1e-4;
 /// … on this many log-spaced ages.
 pub const RESIDUAL_AGE_POINTS: usize = 200;
+/// A note is written when the residual-gas ions carry more than this share of the trap's
+/// compensated space charge (the model does not impose the capacity on them).
+pub const RESIDUAL_CAPACITY_NOTE: f64 = 0.1;
 /// The breeding ladder goes this many charge states past the target.
 pub const LADDER_BEYOND_TARGET: u32 = 2;
 
@@ -311,6 +314,9 @@ pub struct Report {
     pub ions: Option<IonsPerExtraction>,
     /// Residual-gas elements in the spectrum: symbol, amount, fractions 0…Z.
     pub residual_fractions: Vec<(String, f64, Vec<f64>)>,
+    /// The radioactive-beam breeding cycle (`[injection]`): ions per bunch of every nuclide
+    /// of the decay chain at extraction, efficiency and bookkeeping.
+    pub injection: Option<crate::sources::rib_cycle::CycleResult>,
     pub lines: LineList,
     /// None when the target isotope makes no line at this setting (see the notes).
     pub neighbourhood: Option<Neighbourhood>,

@@ -12,6 +12,7 @@ use crate::sources::breeding::breeding_ladder;
 use crate::sources::electron_beam::current_density_a_cm2;
 use crate::sources::energy_map::{spread_averaged, EnergyTimeMap};
 use crate::sources::photon_beam::photon_thresholds;
+use crate::sources::rib_cycle::{run_cycle, CycleResult};
 use crate::sources::Source;
 use crate::spectrum::{
     aq_lines, clean_charge_states, overlaps, resolve_isotope, AcceptanceWindow, OverlapSettings,
@@ -165,7 +166,40 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     };
 
     let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
-    let lines = spectrum_lines(s, &fractions_at_extraction, &residual_fractions)?;
+    let injection = match (&source, &s.injection) {
+        (Source::BeamTrap(trap), Some(c)) => Some(run_cycle(trap, c, &[])?),
+        _ => None,
+    };
+    if let (Some(c), Some(ions)) = (&injection, ions.as_mut()) {
+        // The target's ions per extraction are the cycle's, not the trap's capacity.
+        let per = c.extracted_per_bunch(0).to_vec();
+        ions.isotope_share = 1.0;
+        ions.target = per.get(q as usize).copied().unwrap_or(0.0);
+        ions.all_charges = per.iter().sum();
+        ions.per_charge = per;
+    }
+    if let (Source::BeamTrap(trap), Some(ions)) = (&source, &ions) {
+        let residual_charge: f64 = residual_fractions
+            .iter()
+            .map(|(_, n, f)| n * f.iter().enumerate().map(|(q, v)| q as f64 * v).sum::<f64>())
+            .sum();
+        let capacity = trap.compensation * ions.electrons_in_trap;
+        if residual_charge > RESIDUAL_CAPACITY_NOTE * capacity {
+            notes.push(format!(
+                "the residual-gas ions carry {:.0} % of the trap's compensated space charge ({:.3e} of {:.3e} charges): lower the pressures or breed shorter",
+                100.0 * residual_charge / capacity,
+                residual_charge,
+                capacity
+            ));
+        }
+    }
+    let lines = spectrum_lines(
+        s,
+        &source,
+        &fractions_at_extraction,
+        &residual_fractions,
+        injection.as_ref(),
+    )?;
     // An unreachable target has no line of its own: the report says so and goes on.
     let neighbourhood = match neighbourhood(s, &lines) {
         Ok(n) => Some(n),
@@ -232,6 +266,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         robust_optimum: robust,
         ions,
         residual_fractions,
+        injection,
         lines,
         neighbourhood,
         ranking,
@@ -549,20 +584,38 @@ fn ions_per_extraction(
     })
 }
 
-/// Residual-gas elements with their amounts and charge-state fractions. Residual gas keeps
-/// streaming in: its ions have every age from 0 to the extraction time, so their fractions
-/// are the evolution's time average (trapezoid-like weights on log-spaced ages). A single
-/// collision gives them its yields.
+/// Residual-gas elements with their amounts and charge-state fractions (amount × fraction
+/// is what the A/q spectrum shows).
+///
+/// * Beam trap: absolute ions per extraction from the partial pressures
+///   ([`crate::sources::residual_gas`]: gas density × beam volume × Lotz ionization, bred
+///   from an empty trap over the extraction time).
+/// * Sources without a trap volume (photon beam, single collision): the species' `amount`
+///   is read as its partial pressure (Pa), and each residual element gets the
+///   atom-weighted partial pressure Σ_gas p·ν of its gases; a single collision gives it
+///   its yields, a photon beam the time average of its evolution over ages 0…t (gas keeps
+///   streaming in).
 fn residual_fractions(
     s: &Scenario,
     source: &Source,
     extraction_s: Option<f64>,
 ) -> Result<Vec<(String, f64, Vec<f64>)>> {
-    let total: f64 =
-        s.species.iter().map(|sp| sp.amount).sum::<f64>() * s.separator.residual_amount;
+    if let (Source::BeamTrap(trap), Some(t_ex)) = (source, extraction_s) {
+        return Ok(trap
+            .residual_ions(t_ex)?
+            .into_iter()
+            .filter_map(|r| {
+                let total: f64 = r.per_charge.iter().sum();
+                (total > 0.0).then(|| {
+                    let f = r.per_charge.iter().map(|n| n / total).collect();
+                    (r.symbol, total, f)
+                })
+            })
+            .collect());
+    }
     let mut out = Vec::new();
-    for (symbol, share) in &s.residual_elements {
-        let el = crate::atoms::element(symbol)?;
+    for (symbol, pressure_pa) in residual_atom_pressures_pa(s)? {
+        let el = crate::atoms::element(&symbol)?;
         let f = match (source, extraction_s) {
             (Source::ElectronImpact(src), _) => src.charge_yields(el)?,
             (_, Some(t_ex)) => {
@@ -583,8 +636,23 @@ fn residual_fractions(
             }
             _ => continue,
         };
-        out.push((symbol.clone(), total * share, f));
+        out.push((symbol, pressure_pa, f));
     }
+    Ok(out)
+}
+
+/// Σ_gas p·ν per residual element (Pa): the partial pressure of its atoms.
+fn residual_atom_pressures_pa(s: &Scenario) -> Result<Vec<(String, f64)>> {
+    let mut out: Vec<(String, f64)> = Vec::new();
+    for (name, p) in &s.residual_gas_pa {
+        for (symbol, n) in crate::processes::gases::gas(name)?.atoms {
+            match out.iter_mut().find(|(x, _)| x == symbol) {
+                Some(slot) => slot.1 += p * f64::from(*n),
+                None => out.push(((*symbol).to_string(), p * f64::from(*n))),
+            }
+        }
+    }
+    out.retain(|(_, p)| *p > 0.0);
     Ok(out)
 }
 
@@ -600,25 +668,89 @@ fn gradient(t: &[f64]) -> Vec<f64> {
         .collect()
 }
 
+/// The species' spectrum inputs. In a beam trap every species' ions per extraction are
+/// absolute: the compensated space charge shared in proportion to amount × mean charge
+/// ([`crate::sources::BeamTrap::ions_per_extraction`]); with a breeding cycle the target
+/// species is replaced by the extracted ions of every nuclide of its decay chain (the
+/// daughters are isobaric contaminants). Other sources keep the scenario's amounts.
+fn species_inputs(
+    s: &Scenario,
+    source: &Source,
+    fractions: &[SpeciesFractions],
+    cycle: Option<&CycleResult>,
+) -> Result<Vec<SpeciesInput>> {
+    let of = |sp: &SpeciesEntry| -> Vec<f64> {
+        fractions
+            .iter()
+            .find(|f| f.name == sp.name)
+            .map(|f| f.fractions.clone())
+            .unwrap_or_default()
+    };
+    let load = |sp: &SpeciesEntry| -> f64 {
+        sp.amount
+            * of(sp)
+                .iter()
+                .enumerate()
+                .map(|(q, v)| q as f64 * v)
+                .sum::<f64>()
+    };
+    let total: f64 = s.species.iter().map(load).sum();
+    let target_name = &s.target_species().name;
+    let mut inputs = Vec::new();
+    for sp in &s.species {
+        match (source, cycle) {
+            (Source::BeamTrap(_), Some(c)) if &sp.name == target_name => {
+                for (k, n) in c.nuclides.iter().enumerate() {
+                    let per = c.extracted_per_bunch(k);
+                    let sum: f64 = per.iter().sum();
+                    if sum > 0.0 {
+                        inputs.push(SpeciesInput {
+                            spec: n.label(),
+                            amount: sum,
+                            fractions: per.iter().map(|x| x / sum).collect(),
+                            residual: false,
+                        });
+                    }
+                }
+            }
+            (Source::BeamTrap(trap), _) => {
+                let share = if total > 0.0 { load(sp) / total } else { 0.0 };
+                let per: Vec<f64> = trap
+                    .ions_per_extraction(&of(sp))?
+                    .iter()
+                    .map(|n| n * share)
+                    .collect();
+                let sum: f64 = per.iter().sum();
+                inputs.push(SpeciesInput {
+                    spec: sp.name.clone(),
+                    amount: sum,
+                    fractions: if sum > 0.0 {
+                        per.iter().map(|x| x / sum).collect()
+                    } else {
+                        of(sp)
+                    },
+                    residual: false,
+                });
+            }
+            _ => inputs.push(SpeciesInput {
+                spec: sp.name.clone(),
+                amount: sp.amount,
+                fractions: of(sp),
+                residual: false,
+            }),
+        }
+    }
+    Ok(inputs)
+}
+
 fn spectrum_lines(
     s: &Scenario,
+    source: &Source,
     fractions: &[SpeciesFractions],
     residual: &[(String, f64, Vec<f64>)],
+    cycle: Option<&CycleResult>,
 ) -> Result<crate::spectrum::LineList> {
-    let mut inputs: Vec<SpeciesInput> = s
-        .species
-        .iter()
-        .map(|sp| SpeciesInput {
-            spec: sp.name.clone(),
-            amount: sp.amount,
-            fractions: fractions
-                .iter()
-                .find(|f| f.name == sp.name)
-                .map(|f| f.fractions.clone())
-                .unwrap_or_default(),
-            residual: false,
-        })
-        .collect();
+    let mut inputs = species_inputs(s, source, fractions, cycle)?;
     inputs.extend(residual.iter().map(|(sym, amount, f)| SpeciesInput {
         spec: sym.clone(),
         amount: *amount,

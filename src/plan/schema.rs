@@ -20,6 +20,7 @@ pub(crate) struct RawScenario {
     pub time: Option<RawTime>,
     pub energy_scan: Option<RawEnergyScan>,
     pub separator: Option<RawSeparator>,
+    pub injection: Option<RawInjection>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -98,7 +99,21 @@ pub(crate) struct RawSeparator {
     pub relative_half_width: Option<f64>,
     pub window_fwhm: Option<f64>,
     pub aq_range: Option<Vec<f64>>,
-    pub residual_amount: Option<f64>,
+}
+
+/// The radioactive-beam breeding cycle (beam trap only).
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawInjection {
+    pub isotope: Option<String>,
+    pub ions_per_s: Option<f64>,
+    pub ions_per_bunch: Option<f64>,
+    pub capture_efficiency: Option<f64>,
+    pub repetition_rate_hz: f64,
+    pub breeding_time_s: Option<f64>,
+    pub injected_charge: Option<i64>,
+    pub daughter_charge: Option<String>,
+    pub max_nuclides: Option<i64>,
 }
 
 /// Largest scenario file read (bytes): 1 MiB. A scenario is a few kB; the limit keeps a

@@ -7,6 +7,7 @@ use crate::atoms::{element, Element};
 use crate::error::Result;
 use crate::sources::beam_trap::{require_compensation, Processes};
 use crate::sources::electron_beam::BeamSize;
+use crate::sources::rib_cycle::BreedingCycle;
 use crate::sources::{BeamTrap, ElectronBeam, ElectronImpactSource, PhotonBeam, Source};
 
 /// The target ion: one isotope at one charge state.
@@ -218,8 +219,6 @@ pub struct Separator {
     pub relative_half_width: Option<f64>,
     pub window_fwhm: f64,
     pub aq_range: Option<(f64, f64)>,
-    /// Residual-gas ions relative to the species' ions, for the A/q spectrum.
-    pub residual_amount: f64,
 }
 
 /// A checked scenario with every default filled in.
@@ -239,6 +238,9 @@ pub struct Scenario {
     pub time: TimeGrid,
     pub energy_scan: EnergyGrid,
     pub separator: Separator,
+    /// The radioactive-beam breeding cycle of the target isotope (`[injection]`, beam trap
+    /// only); its breeding time is the extraction time.
+    pub injection: Option<BreedingCycle>,
     /// Line (1-based) of every field and table written in the file, by dotted path
     /// (`beam_trap.energy_ev`, `species[1].name`).
     pub lines: BTreeMap<String, usize>,

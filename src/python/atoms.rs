@@ -93,12 +93,17 @@ impl PyElement {
         self.inner
             .isotopes()
             .iter()
-            .map(|i| PyIsotope {
-                mass_number: i.mass_number,
-                mass_u: i.mass_u,
-                abundance: i.abundance,
-            })
+            .map(PyIsotope::from_core)
             .collect()
+    }
+    /// The isotope of mass number ``mass_number``: mass, abundance, half-life and decay
+    /// channels.
+    fn isotope(&self, mass_number: &Bound<'_, PyAny>) -> PyResult<PyIsotope> {
+        let a = int_arg("mass_number", mass_number)?;
+        let a = u32::try_from(a).map_err(|_| {
+            crate::error::Error::invalid("mass_number", a, "must be a positive whole number")
+        })?;
+        Ok(PyIsotope::from_core(self.inner.isotope(a)?))
     }
     /// X-ray absorption edges of the neutral atom: ``edge``, ``subshell``, ``binding_ev``,
     /// ``jump_ratio``, ``fluorescence_yield``.
@@ -129,12 +134,33 @@ impl PyElement {
     }
 }
 
-/// One isotope: mass number, atomic mass (u) and natural abundance (None if not natural).
+/// One isotope: mass number, atomic mass (u), natural abundance (None if not natural),
+/// half-life (s; None if stable or unknown) and decay channels [(name, branching)].
 #[pyclass(name = "Isotope", module = "chargecast", frozen, get_all)]
 pub(crate) struct PyIsotope {
     mass_number: u32,
     mass_u: f64,
     abundance: Option<f64>,
+    half_life_s: Option<f64>,
+    is_radioactive: bool,
+    decay_modes: Vec<(&'static str, f64)>,
+}
+
+impl PyIsotope {
+    fn from_core(i: &crate::atoms::Isotope) -> Self {
+        PyIsotope {
+            mass_number: i.mass_number,
+            mass_u: i.mass_u,
+            abundance: i.abundance,
+            half_life_s: i.half_life_s(),
+            is_radioactive: i.decay.is_some(),
+            decay_modes: i
+                .decay
+                .as_ref()
+                .map(|d| d.modes.iter().map(|(m, f)| (m.label(), *f)).collect())
+                .unwrap_or_default(),
+        }
+    }
 }
 
 #[pymethods]

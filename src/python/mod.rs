@@ -18,6 +18,8 @@ mod rate_equations;
 mod results;
 mod spectrum;
 mod trap_dynamics;
+// Radioactive-beam breeding cycle and residual-gas ions (issue 11).
+mod rib_cycle;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 
@@ -40,5 +42,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     plan::register(m)?;
     limits::register(m)?;
     trap_dynamics::register(m)?;
+    rib_cycle::register(m)?;
     Ok(())
 }

@@ -146,7 +146,6 @@ pub(crate) struct PySeparator {
     relative_half_width: Option<f64>,
     window_fwhm: f64,
     aq_range: Option<(f64, f64)>,
-    residual_amount: f64,
 }
 
 /// A checked scenario: every field of the file with its defaults filled in. Read one
@@ -249,7 +248,6 @@ impl PyScenario {
             relative_half_width: s.relative_half_width,
             window_fwhm: s.window_fwhm,
             aq_range: s.aq_range,
-            residual_amount: s.residual_amount,
         }
     }
     /// Line of every field and table in the file, by dotted path.
@@ -858,6 +856,18 @@ impl PyReport {
             margin_ev: r.margin_ev,
             tube_voltage_v: r.tube_voltage_v,
         })
+    }
+    /// The radioactive-beam breeding cycle (``[injection]``), None without one.
+    #[getter]
+    fn injection<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyAny>>> {
+        match (&self.inner.injection, &self.inner.scenario.injection) {
+            (Some(result), Some(cycle)) => Ok(Some(super::rib_cycle::PyBreedingCycle::result(
+                py,
+                result.clone(),
+                cycle.breeding_time_s,
+            )?)),
+            _ => Ok(None),
+        }
     }
     #[getter]
     fn ions(&self) -> Option<PyIons> {

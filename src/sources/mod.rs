@@ -8,6 +8,8 @@ pub mod electron_beam;
 pub mod electron_impact;
 pub mod energy_map;
 pub mod photon_beam;
+pub mod residual_gas;
+pub mod rib_cycle;
 pub mod trap_dynamics;
 
 use ndarray::Array2;
