@@ -36,11 +36,13 @@
 //! from memory): the model gives Lotz+EA / Lotz at 1.5 × the 2p → 3 threshold of 3.3 for
 //! Fe¹⁵⁺, 3.2 for Ar⁷⁺ (see the README table for the measured figures).
 
-use crate::atoms::Ion;
+use crate::atoms::{Element, Ion};
 use crate::constants::{BOHR_RADIUS_M, RYDBERG_EV};
 use crate::error::{require_positive, Result};
 use crate::processes::core_excitation::{autoionization_rate_per_s, core_excitations};
+use crate::processes::ion_lotz::ionization_cross_sections_cm2;
 use crate::processes::lotz::maxwellian_speed_factor_cm_s;
+use crate::processes::lotz::LotzConstants;
 use crate::processes::special::exp1;
 
 /// √3/(2π): the high-energy slope of van Regemorter's Gaunt factor in ln(E/ΔE).
@@ -149,6 +151,23 @@ pub fn cross_sections_cm2(ion: &Ion, energies_ev: &[f64]) -> Vec<f64> {
         .collect()
 }
 
+/// All single-ionization channels of ion `charge` at each energy (cm²): Lotz direct
+/// ionization ([`super::ion_lotz`]) plus EA.
+pub fn single_ionization_cross_sections_cm2(
+    element: &'static Element,
+    charge: i64,
+    energies_ev: &[f64],
+    constants: Option<LotzConstants>,
+) -> Result<Vec<f64>> {
+    let direct = ionization_cross_sections_cm2(element, charge, energies_ev, constants)?;
+    let ion = element.ion(charge)?;
+    Ok(direct
+        .iter()
+        .zip(cross_sections_cm2(&ion, energies_ev))
+        .map(|(d, ea)| d + ea)
+        .collect())
+}
+
 /// Maxwellian EA rate coefficient (cm³ s⁻¹) of `ion` at electron temperature kT (eV).
 pub fn rate_coefficient_cm3_s(ion: &Ion, temperature_ev: f64) -> Result<f64> {
     require_positive("temperature_ev", temperature_ev)?;
@@ -173,7 +192,6 @@ pub fn rate_coefficient_cm3_s(ion: &Ion, temperature_ev: f64) -> Result<f64> {
 mod tests {
     use super::*;
     use crate::atoms::element;
-    use crate::processes::ion_lotz::ionization_cross_sections_cm2;
 
     #[test]
     fn na_like_ions_have_a_2p_channel_above_the_limit() {
