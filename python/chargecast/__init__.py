@@ -79,6 +79,18 @@ from chargecast.spectrum import (
     overlaps,
 )
 
+# --- indirect and resonant processes (excitation–autoionization, dielectronic recombination)
+# isort: split
+from chargecast.indirect import (
+    DrResonances,
+    dielectronic_cross_section_cm2,
+    dielectronic_rate_coefficient_cm3_s,
+    dr_resonances,
+    excitation_autoionization_cross_section_cm2,
+    excitation_autoionization_rate_coefficient_cm3_s,
+    ionization_cross_section_cm2,
+)
+
 # --- scenario files and reports
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
@@ -86,6 +98,13 @@ from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenar
 __version__: str = _core.__version__
 
 __all__ = [
+    "DrResonances",
+    "dielectronic_cross_section_cm2",
+    "dielectronic_rate_coefficient_cm3_s",
+    "dr_resonances",
+    "excitation_autoionization_cross_section_cm2",
+    "excitation_autoionization_rate_coefficient_cm3_s",
+    "ionization_cross_section_cm2",
     "AppearanceCurves",
     "ChargeYields",
     "ElectronImpactSource",

@@ -35,8 +35,11 @@
 //!
 //! # Validity
 //!
-//! Δn = 0 excitations (2s → 2p, 3p → 3d) are not included; fine structure and term
-//! splitting are averaged away (each band is one configuration-average energy).
+//! Δn = 0 excitations (2s → 2p, 3p → 3d, 4d → 4f) are not included, and a subshell whose
+//! Δn = 0 partner (n, l + 1) has a vacancy is left out altogether: that transition takes most
+//! of its oscillator strength, which the hydrogenic Δn ≥ 1 values would count again (Ar⁺ 3s,
+//! Li-like 2s, Xe 4d with 4f empty). Fine structure and term splitting are averaged away
+//! (each band is one configuration-average energy).
 
 use crate::atoms::Ion;
 use crate::constants::RYDBERG_EV;
@@ -154,6 +157,9 @@ pub fn core_excitations(ion: &Ion) -> Vec<CoreExcitation> {
     let mut out = Vec::new();
     for s in ion.subshells() {
         let n_s = s.subshell.n;
+        if has_open_partner(ion, s.subshell.n, s.subshell.l) {
+            continue;
+        }
         // Electrons above shell n_s (or in it, besides s's own) that could fill a hole in s by
         // an Auger step.
         let above: u32 = shells
@@ -192,6 +198,22 @@ pub fn core_excitations(ion: &Ion) -> Vec<CoreExcitation> {
         }
     }
     out
+}
+
+/// Whether the subshell (n, l + 1) of the same shell exists and has a vacancy: then the
+/// Δn = 0 excitation l → l + 1 takes most of the subshell's oscillator strength (the
+/// hydrogenic Δn ≥ 1 values assume it cannot), and the Δn ≥ 1 excitations are left out.
+fn has_open_partner(ion: &Ion, n: u32, l: u32) -> bool {
+    if l + 1 >= n {
+        return false;
+    }
+    let capacity = 2 * (2 * (l + 1) + 1);
+    let present = ion
+        .subshells()
+        .iter()
+        .find(|s| s.subshell.n == n && s.subshell.l == l + 1)
+        .map_or(0, |s| s.occupancy);
+    present < capacity
 }
 
 /// Autoionization rate (s⁻¹) of an outer electron in shell `n` when the lowest shell the

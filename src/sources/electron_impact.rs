@@ -12,13 +12,12 @@
 //! * P_s(k): relaxation of the hole in s ([`crate::processes::relaxation`]) — an outer hole
 //!   stays (k = 0), an inner hole whose binding exceeds the double-ionization threshold can
 //!   add charges;
-//! * σ₂^direct: direct double ionization ([`crate::processes::double_ionization`]);
-//! * excitation–autoionization of the atom into charge 1
-//!   ([`crate::processes::excitation_autoionization`], on by default, a switch on the source).
+//! * σ₂^direct: direct double ionization ([`crate::processes::double_ionization`]).
 //!
 //! Each σ_c is zero below its threshold Σ_{j<c} IE_j (the relaxation obeys the energy bound).
 //! A spread of electron energies (Gaussian, FWHM) is folded in by averaging σ_c over it.
-//! Not included: direct triple and higher ionization, ionization of molecules.
+//! Not included: direct triple and higher ionization, excitation–autoionization, ionization
+//! of molecules.
 //!
 //! The sum Σ_s σ_s P_s(c − 1) is [`crate::processes::vacancy_jumps`].
 //!
@@ -37,7 +36,6 @@ use rayon::prelude::*;
 use crate::atoms::Element;
 use crate::error::{require_all_positive, require_non_negative, require_positive, Result};
 use crate::processes::double_ionization::direct_double_ionization_cm2;
-use crate::processes::excitation_autoionization::cross_section_cm2 as ea_cross_section_cm2;
 use crate::processes::ion_lotz::ion_lotz_shells;
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
 use crate::processes::vacancy_jumps::vacancy_jumps;
@@ -51,8 +49,6 @@ pub struct ImpactCrossSections {
     pub subshell_ionization_cm2: Vec<f64>,
     /// Direct double ionization (cm²), non-zero at charge 2 only.
     pub direct_double_cm2: Vec<f64>,
-    /// Excitation–autoionization of the atom (cm²), non-zero at charge 1 only.
-    pub excitation_autoionization_cm2: Vec<f64>,
 }
 
 impl ImpactCrossSections {
@@ -60,17 +56,15 @@ impl ImpactCrossSections {
         Self {
             subshell_ionization_cm2: vec![0.0; n],
             direct_double_cm2: vec![0.0; n],
-            excitation_autoionization_cm2: vec![0.0; n],
         }
     }
 
-    /// Sum of the routes per charge (cm²).
+    /// Sum of both routes per charge (cm²).
     pub fn total_cm2(&self) -> Vec<f64> {
         self.subshell_ionization_cm2
             .iter()
             .zip(&self.direct_double_cm2)
-            .zip(&self.excitation_autoionization_cm2)
-            .map(|((a, b), c)| a + b + c)
+            .map(|(a, b)| a + b)
             .collect()
     }
 
@@ -89,13 +83,6 @@ impl ImpactCrossSections {
         {
             *a += weight * b;
         }
-        for (a, b) in self
-            .excitation_autoionization_cm2
-            .iter_mut()
-            .zip(&other.excitation_autoionization_cm2)
-        {
-            *a += weight * b;
-        }
     }
 }
 
@@ -103,7 +90,6 @@ impl ImpactCrossSections {
 pub fn impact_cross_sections_at(
     element: &'static Element,
     energy_ev: f64,
-    excitation_autoionization: bool,
 ) -> Result<ImpactCrossSections> {
     let neutral = element.ion(0)?;
     let n = element.z() as usize + 1;
@@ -122,11 +108,6 @@ pub fn impact_cross_sections_at(
     if let Some(slot) = out.direct_double_cm2.get_mut(2) {
         *slot = direct_double_ionization_cm2(&neutral, energy_ev);
     }
-    if excitation_autoionization {
-        if let Some(slot) = out.excitation_autoionization_cm2.get_mut(1) {
-            *slot = ea_cross_section_cm2(&neutral, energy_ev);
-        }
-    }
     Ok(out)
 }
 
@@ -136,8 +117,6 @@ pub fn impact_cross_sections_at(
 pub struct ElectronImpactSource {
     pub energy_ev: f64,
     pub energy_spread_ev: f64,
-    /// Include excitation–autoionization of the atom (on by default).
-    pub excitation_autoionization: bool,
 }
 
 impl ElectronImpactSource {
@@ -148,19 +127,13 @@ impl ElectronImpactSource {
         Ok(Self {
             energy_ev,
             energy_spread_ev,
-            excitation_autoionization: true,
         })
     }
 
     /// Partial cross sections averaged over the energy spread.
     pub fn cross_sections(&self, element: &'static Element) -> Result<ImpactCrossSections> {
         let me = Self::new(self.energy_ev, self.energy_spread_ev)?;
-        spread_cross_sections(
-            element,
-            me.energy_ev,
-            me.energy_spread_ev,
-            self.excitation_autoionization,
-        )
+        spread_cross_sections(element, me.energy_ev, me.energy_spread_ev)
     }
 
     /// Relative yields of each final charge 0…Z (index 0 is 0) for one collision with the
@@ -180,14 +153,10 @@ fn spread_cross_sections(
     element: &'static Element,
     energy_ev: f64,
     spread_ev: f64,
-    excitation_autoionization: bool,
 ) -> Result<ImpactCrossSections> {
     let mut out = ImpactCrossSections::zeros(element.z() as usize + 1);
     for (e, w) in gaussian_nodes(energy_ev, spread_ev) {
-        out.add_scaled(
-            &impact_cross_sections_at(element, e, excitation_autoionization)?,
-            w,
-        );
+        out.add_scaled(&impact_cross_sections_at(element, e)?, w);
     }
     Ok(out)
 }
@@ -213,7 +182,7 @@ pub fn appearance_curves(
             .par_iter()
             .map(|&e| {
                 crate::interrupt::check()?;
-                Ok(spread_cross_sections(element, e, energy_spread_ev, true)?.total_cm2())
+                Ok(spread_cross_sections(element, e, energy_spread_ev)?.total_cm2())
             })
             .collect()
     });
@@ -271,23 +240,5 @@ mod tests {
         assert_eq!(m[[0, 1]], 0.0);
         assert!(m[[1, 2]] > 0.0);
         assert!(appearance_curves(ne, &[-1.0], 0.0).is_err());
-    }
-
-    #[test]
-    fn the_ea_switch_off_leaves_today_s_cross_sections() {
-        // Sodium: the 2p → 3 excitation of the atom lies above its 5.14 eV limit.
-        let na = element("Na").unwrap();
-        let mut src = ElectronImpactSource::new(100.0, 0.0).unwrap();
-        let on = src.cross_sections(na).unwrap();
-        src.excitation_autoionization = false;
-        let off = src.cross_sections(na).unwrap();
-        assert_eq!(off.excitation_autoionization_cm2.iter().sum::<f64>(), 0.0);
-        assert_eq!(on.subshell_ionization_cm2, off.subshell_ionization_cm2);
-        assert!(on.excitation_autoionization_cm2[1] > 0.0);
-        assert!(on
-            .excitation_autoionization_cm2
-            .iter()
-            .skip(2)
-            .all(|v| *v == 0.0));
     }
 }
