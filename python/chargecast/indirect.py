@@ -12,7 +12,7 @@ and in the README.
 
 from __future__ import annotations
 
-from typing import Any, Optional
+from typing import Any, Optional, cast
 
 from chargecast import _core
 from chargecast._util import as_float, as_float_array, as_int, require_pandas, restore
@@ -78,7 +78,7 @@ def excitation_autoionization_cross_section_cm2(element: str | int, charge: int,
     Examples
     --------
     >>> import chargecast as cc
-    >>> float(cc.excitation_autoionization_cross_section_cm2("Ne", 2, 500.0))  # no inner excitation above the limit
+    >>> float(cc.excitation_autoionization_cross_section_cm2("Ne", 2, 500.0))  # none above the limit
     0.0
     """
     arr, shape = as_float_array("energies_ev", energies_ev)
@@ -86,7 +86,9 @@ def excitation_autoionization_cross_section_cm2(element: str | int, charge: int,
     return restore(out, shape)
 
 
-def excitation_autoionization_rate_coefficient_cm3_s(element: str | int, charge: int, temperatures_ev: Any) -> Any:
+def excitation_autoionization_rate_coefficient_cm3_s(
+    element: str | int, charge: int, temperatures_ev: Any
+) -> Any:
     """Maxwellian EA rate coefficient of one ion.
 
     Parameters
@@ -102,6 +104,13 @@ def excitation_autoionization_rate_coefficient_cm3_s(element: str | int, charge:
     -------
     float or ndarray
         Rate coefficient ⟨σv⟩ (cm³ s⁻¹).
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> k = cc.excitation_autoionization_rate_coefficient_cm3_s("Fe", 15, [100.0, 1000.0])
+    >>> bool(k[1] > 100 * k[0])  # the 2p channel opens near 730 eV
+    True
     """
     arr, shape = as_float_array("temperatures_ev", temperatures_ev)
     out = _core.excitation_autoionization_rate_coefficient_cm3_s(element, as_int("charge", charge), arr)
@@ -125,6 +134,13 @@ def dielectronic_rate_coefficient_cm3_s(element: str | int, charge: int, tempera
     -------
     float or ndarray
         Rate coefficient (cm³ s⁻¹) for charge → charge − 1.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> alpha = cc.dielectronic_rate_coefficient_cm3_s("Fe", 24, [1000.0, 2000.0])
+    >>> [f"{a:.1e}" for a in alpha]
+    ['1.2e-13', '5.6e-13']
     """
     arr, shape = as_float_array("temperatures_ev", temperatures_ev)
     out = _core.dielectronic_rate_coefficient_cm3_s(element, as_int("charge", charge), arr)
@@ -152,6 +168,15 @@ def dielectronic_cross_section_cm2(
     -------
     float or ndarray
         Cross section (cm²) for charge → charge − 1.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> kll = float(cc.dr_resonances("Fe", 24).energies_ev[0])
+    >>> on = float(cc.dielectronic_cross_section_cm2("Fe", 24, kll, energy_spread_ev=10.0))
+    >>> off = float(cc.dielectronic_cross_section_cm2("Fe", 24, kll + 200.0, energy_spread_ev=10.0))
+    >>> on > 1e-20 and off == 0.0
+    True
     """
     arr, shape = as_float_array("energies_ev", energies_ev)
     out = _core.dielectronic_cross_section_cm2(
@@ -168,6 +193,13 @@ class DrResonances(_core.DrResonances):
     core electron, "1s", "2p", …), ``core_shells`` (the shell it reaches) and
     ``capture_shells`` (the captured electron's shell). KLL for He-like iron is
     ``core_subshells == "1s"``, ``core_shells == 2``, ``capture_shells == 2``.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> r = cc.dr_resonances("Ar", 16)
+    >>> r.core_subshells[0], r.core_shells[0], r.capture_shells[0]
+    ('1s', 2, 2)
     """
 
     __slots__ = ()
@@ -248,4 +280,4 @@ def dr_resonances(element: str | int, charge: int) -> DrResonances:
     >>> 4500 < kll < 4700
     True
     """
-    return _core.dr_resonances(element, as_int("charge", charge))  # type: ignore[no-any-return]
+    return cast(DrResonances, _core.dr_resonances(element, as_int("charge", charge)))
