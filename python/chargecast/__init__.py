@@ -82,6 +82,17 @@ from chargecast.spectrum import (
 # --- radioactive-beam breeding cycle and residual-gas ions from pressures
 # isort: split
 from chargecast.rib import BreedingCycle, breeding_cycle, residual_gas_ions
+# --- indirect and resonant processes (excitation–autoionization, dielectronic recombination)
+# isort: split
+from chargecast.indirect import (
+    DrResonances,
+    dielectronic_cross_section_cm2,
+    dielectronic_rate_coefficient_cm3_s,
+    dr_resonances,
+    excitation_autoionization_cross_section_cm2,
+    excitation_autoionization_rate_coefficient_cm3_s,
+    ionization_cross_section_cm2,
+)
 
 # --- scenario files and reports
 # isort: split
@@ -90,6 +101,13 @@ from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenar
 __version__: str = _core.__version__
 
 __all__ = [
+    "DrResonances",
+    "dielectronic_cross_section_cm2",
+    "dielectronic_rate_coefficient_cm3_s",
+    "dr_resonances",
+    "excitation_autoionization_cross_section_cm2",
+    "excitation_autoionization_rate_coefficient_cm3_s",
+    "ionization_cross_section_cm2",
     "AppearanceCurves",
     "ChargeYields",
     "ElectronImpactSource",

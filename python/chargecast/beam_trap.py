@@ -95,8 +95,24 @@ class EnergyScan(_core.EnergyScan):
     def _target(self) -> str:
         return "+".join(f"{q}+" for q in self.charges)
 
+    def _resonance_bands_ev(self) -> list[tuple[float, float]]:
+        """Dielectronic-resonance bands (eV) inside the scanned electron energies that make
+        or destroy the target: those of the target charges and of one charge higher, clipped
+        to the scanned range (see :meth:`DrResonances.bands_ev`)."""
+        from chargecast.indirect import dr_resonances
+
+        lo, hi = float(self.energies_ev.min()), float(self.energies_ev.max())
+        z = _core.element(self.element).z
+        out = []
+        for q in sorted({c for t in self.charges for c in (t, t + 1) if 1 <= c <= z}):
+            for a, b in dr_resonances(self.element, q).bands_ev(min_fraction=1e-2):
+                if b >= lo and a <= hi:
+                    out.append((max(a, lo), min(b, hi)))
+        return out
+
     def plot(self, ax: Optional[Any] = None) -> Any:
-        """Energy × time map of the target fraction (log time axis), best point marked.
+        """Energy × time map of the target fraction (log time axis), best point marked, and
+        the dielectronic-resonance bands that make or destroy the target hatched.
 
         Returns
         -------
@@ -108,6 +124,16 @@ class EnergyScan(_core.EnergyScan):
         t = np.where(self.times_s > 0, self.times_s, np.nan)
         mesh = ax.pcolormesh(t, self.energies_ev, self.fraction, shading="nearest", cmap="viridis", vmin=0)
         ax.figure.colorbar(mesh, ax=ax, label=f"fraction of {self.element}{self._target()}")
+        for i, (a, b) in enumerate(self._resonance_bands_ev()):
+            ax.axhspan(
+                a,
+                b,
+                facecolor="none",
+                edgecolor=PALETTE[2],
+                hatch="//",
+                linewidth=0.6,
+                label="DR resonance bands" if i == 0 else None,
+            )
         ax.plot(
             [self.best_time_s],
             [self.best_energy_ev],

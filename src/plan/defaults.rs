@@ -6,10 +6,10 @@ use super::settings::{SourceSettings, Target};
 use crate::atoms::{element, Element};
 use crate::sources::beam_trap::Processes;
 use crate::sources::breeding::breeding_time_s;
-use crate::sources::electron_beam::{current_density_a_cm2, space_charge_depression_v};
+use crate::sources::electron_beam::current_density_a_cm2;
 
 /// Processes a beam trap can include (the core's list).
-pub const PROCESSES: [&str; 4] = Processes::NAMES;
+pub const PROCESSES: [&str; 6] = Processes::NAMES;
 /// Peak shapes of the separator.
 pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
 pub const DEFAULT_PEAK_SHAPE: &str = "gaussian";
@@ -66,20 +66,8 @@ pub fn default_energy_range(source: &SourceSettings, target: &Target) -> (f64, f
     }
 }
 
-/// Default energy spread (full width, eV) of a trap's electron beam: the space-charge
-/// potential difference between the axis and the edge of a uniform beam,
-/// (1 − f)·I/(4πε₀v) (Gauss's law; the depression with the drift tube at the beam edge),
-/// f the compensated fraction. Across a uniform beam the potential is parabolic in r and
-/// the area grows as r dr, so the electrons' energies are spread uniformly over this width
-/// around the mean; the cathode's thermal spread (≈ kT_c, 0.1 eV) is negligible beside it.
-pub fn beam_energy_spread_ev(
-    energy_ev: f64,
-    current_a: f64,
-    radius_m: f64,
-    compensation: f64,
-) -> f64 {
-    (1.0 - compensation) * space_charge_depression_v(current_a, energy_ev, radius_m, radius_m)
-}
+/// Default energy spread of a trap's electron beam (one definition, next to the beam).
+pub use crate::sources::electron_beam::beam_energy_spread_ev;
 
 /// Points at which the spread-averaged fraction samples the beam's energy distribution.
 pub const SPREAD_SAMPLES: usize = 17;

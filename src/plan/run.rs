@@ -1,6 +1,6 @@
 //! Running a scenario: every number of the report, computed once, here.
 
-use super::defaults::{beam_energy_spread_ev, SPREAD_SAMPLES, THRESHOLD_SIDE_EV};
+use super::defaults::{SPREAD_SAMPLES, THRESHOLD_SIDE_EV};
 use super::report::*;
 use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target};
 use super::warnings::{source_warnings, threshold_warning, time_grid_warning, Warning};
@@ -117,8 +117,7 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         let map = energy_map(s, &source, target_el, &times, progress)?;
         if let Source::BeamTrap(trap) = &source {
             let b = &trap.beam;
-            let spread =
-                beam_energy_spread_ev(b.energy_ev, b.current_a, b.radius_m, trap.compensation);
+            let spread = trap.energy_spread_ev();
             let scan = (s.energy_scan.start_ev, s.energy_scan.stop_ev);
             let mut best = robust_optimum(&map, spread, target_el.ionization_energies_ev(), scan);
             if let (SourceSettings::BeamTrap(t), Some(tube)) = (&s.source, drift_tube_radius_m(s)) {

@@ -6,9 +6,12 @@
 
 pub mod beam_heating;
 pub mod charge_exchange;
+pub mod core_excitation;
 pub mod coulomb_logarithm;
+pub mod dielectronic;
 pub mod double_ionization;
 pub mod escape;
+pub mod excitation_autoionization;
 pub mod gases;
 pub mod ion_collisions;
 pub mod ion_lotz;

@@ -279,10 +279,10 @@ fn element(value: &Bound<'_, PyAny>) -> PyResult<PyElement> {
     })
 }
 
-type Arg<'a, 'py> = Option<&'a Bound<'py, PyAny>>;
+pub(crate) type Arg<'a, 'py> = Option<&'a Bound<'py, PyAny>>;
 
 /// Lotz constants given by the caller (None when all three are left out).
-fn constants(a: Arg, b: Arg, c: Arg) -> PyResult<Option<LotzConstants>> {
+pub(crate) fn constants(a: Arg, b: Arg, c: Arg) -> PyResult<Option<LotzConstants>> {
     let a = opt_float_arg("a", a)?;
     let b = opt_float_arg("b", b)?;
     let c = opt_float_arg("c", c)?;

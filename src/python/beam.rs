@@ -15,6 +15,9 @@ use crate::sources::electron_beam::{
 /// ``current_density_a_cm2`` or ``magnetic_field_t`` (the beam then has its Brillouin radius;
 /// with ``cathode_radius_m`` and ``cathode_temperature_k`` (K), and optionally
 /// ``cathode_field_t``, its Herrmann radius enclosing 80 % of the current).
+/// ``energy_spread_ev`` (FWHM, eV, ≥ 0) sets the electrons' energy spread, which folds the
+/// dielectronic resonances in a trap; by default a trap takes the space-charge width
+/// (1 − f)·I/(4πε₀v) of the beam at its compensation f.
 ///
 /// Examples
 /// --------
@@ -36,7 +39,8 @@ pub(crate) struct PyElectronBeam {
 impl PyElectronBeam {
     #[new]
     #[pyo3(signature = (energy_ev, current_a, *, radius_m=None, current_density_a_cm2=None, magnetic_field_t=None,
-                        cathode_radius_m=None, cathode_temperature_k=None, cathode_field_t=None))]
+                        cathode_radius_m=None, cathode_temperature_k=None, cathode_field_t=None,
+                        energy_spread_ev=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         py: Python<'_>,
@@ -48,6 +52,7 @@ impl PyElectronBeam {
         cathode_radius_m: Option<&Bound<'_, PyAny>>,
         cathode_temperature_k: Option<&Bound<'_, PyAny>>,
         cathode_field_t: Option<&Bound<'_, PyAny>>,
+        energy_spread_ev: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
         let energy_ev = float_arg("energy_ev", energy_ev)?;
         let current_a = float_arg("current_a", current_a)?;
@@ -65,7 +70,9 @@ impl PyElectronBeam {
             cathode_temperature_k,
             cathode_field_t,
         )?;
-        let inner = ElectronBeam::new(energy_ev, current_a, size)?;
+        let energy_spread_ev = opt_float_arg("energy_spread_ev", energy_spread_ev)?;
+        let inner =
+            ElectronBeam::new(energy_ev, current_a, size)?.with_energy_spread(energy_spread_ev)?;
         // Plausibility warnings, one definition in the core (plan::warnings).
         let mut warnings =
             crate::plan::warnings::beam_warnings(inner.energy_ev, inner.current_a, inner.radius_m);
@@ -90,6 +97,11 @@ impl PyElectronBeam {
     #[getter]
     fn current_density_a_cm2(&self) -> f64 {
         self.inner.current_density_a_cm2
+    }
+    /// Energy spread (FWHM, eV) given to the beam, or None (a trap's space-charge default).
+    #[getter]
+    fn energy_spread_ev(&self) -> Option<f64> {
+        self.inner.energy_spread_ev
     }
     #[getter]
     fn speed_m_s(&self) -> f64 {

@@ -236,6 +236,12 @@ impl PyBeamTrap {
     fn compensation(&self) -> f64 {
         self.inner.compensation
     }
+    /// Energy spread (FWHM, eV) of the beam's electrons in this trap: the beam's own setting,
+    /// else the space-charge width at this trap's compensation.
+    #[getter]
+    fn energy_spread_ev(&self) -> f64 {
+        self.inner.energy_spread_ev()
+    }
     /// Escape rate of each charge state (s⁻¹), or None.
     #[getter]
     fn loss_per_s<'py>(&self, py: Python<'py>) -> Option<Bound<'py, PyArray1<f64>>> {

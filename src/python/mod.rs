@@ -14,6 +14,7 @@ mod evolution;
 mod limits;
 mod photon_beam;
 mod plan;
+mod processes_indirect;
 mod rate_equations;
 mod results;
 mod spectrum;
@@ -43,5 +44,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     limits::register(m)?;
     trap_dynamics::register(m)?;
     rib_cycle::register(m)?;
+    processes_indirect::register(m)?;
     Ok(())
 }

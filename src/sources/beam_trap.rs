@@ -17,6 +17,12 @@
 //! * charge exchange q → q−1 at Σ_gas n_gas σ_CX v̄_ion (Müller & Salzborn 1977,
 //!   [`crate::processes::charge_exchange`]), a channel open only where the recombined ion
 //!   binds the captured electron more strongly than the gas does (exothermic capture);
+//! * excitation–autoionization q → q+1 at (j/e)·σ_EA (van Regemorter 1962 excitation of
+//!   inner electrons above the ionization limit, [`crate::processes::excitation_autoionization`]);
+//! * dielectronic recombination q → q−1 at (j/e)·Σ_r S_r G(E − E_r), the resonance
+//!   strengths of [`crate::processes::dielectronic`] folded with a Gaussian of the beam's
+//!   energy spread (FWHM: the beam's `energy_spread_ev`, else the space-charge width
+//!   [`super::electron_beam::beam_energy_spread_ev`] at this trap's compensation);
 //! * optional escape rates per charge, a constant feed, and the jump rates of a photon beam
 //!   crossing the ions ([`super::photon_beam`]).
 //!
@@ -26,20 +32,21 @@
 //! # Validity and accuracy
 //!
 //! The ions are taken to sit inside the beam (no radial overlap factor), at one fixed ion
-//! temperature; no excitation–autoionization, dielectronic recombination, ion heating or
-//! evaporative escape (give escape rates explicitly). Accuracy is that of the cross sections
+//! temperature; no ion heating or evaporative escape (give escape rates explicitly). Accuracy is that of the cross sections
 //! (Lotz ±30–40 % for ions, Müller–Salzborn about a factor 2, from memory); the solved
 //! populations match scipy's `expm` and `solve_ivp(Radau)` on the same networks
 //! (`tests/python/test_trap.py`), and ionization alone reproduces the Bateman chain.
 
-use super::electron_beam::{electrons_in_trap, ElectronBeam};
+use super::electron_beam::{beam_energy_spread_ev, electrons_in_trap, ElectronBeam};
 use super::photon_beam::{photon_network, PhotonBeam};
 use crate::atoms::Element;
 use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
 use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::charge_exchange::{gas_number_density_m3, muller_salzborn_cross_section_cm2};
+use crate::processes::dielectronic::{beam_cross_section_cm2, resonances as dr_resonances};
 use crate::processes::double_ionization::direct_double_ionization_cm2;
+use crate::processes::excitation_autoionization::cross_section_cm2 as ea_cross_section_cm2;
 use crate::processes::gases::{gas, Gas};
 use crate::processes::ion_lotz::{ion_lotz_shells, ionization_cross_sections_cm2};
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
@@ -76,15 +83,20 @@ pub struct GasComponent {
 }
 
 /// Which processes the network includes. By default: single ionization (Lotz),
-/// radiative recombination and charge exchange; `multiple_ionization` (off by default)
-/// lets each subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
-/// double ionization (q → q+2).
+/// radiative recombination, charge exchange, excitation–autoionization and dielectronic
+/// recombination; `multiple_ionization` (off by default) lets each subshell's ionization
+/// relax by Auger cascades (q → q+1+k) and adds direct double ionization (q → q+2).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Processes {
     pub ionization: bool,
     pub multiple_ionization: bool,
     pub radiative_recombination: bool,
     pub charge_exchange: bool,
+    /// Excitation–autoionization q → q+1 ([`crate::processes::excitation_autoionization`]).
+    pub excitation_autoionization: bool,
+    /// Dielectronic recombination q → q−1 ([`crate::processes::dielectronic`]), folded with
+    /// the beam's energy spread.
+    pub dielectronic_recombination: bool,
 }
 
 impl Default for Processes {
@@ -94,17 +106,21 @@ impl Default for Processes {
             multiple_ionization: false,
             radiative_recombination: true,
             charge_exchange: true,
+            excitation_autoionization: true,
+            dielectronic_recombination: true,
         }
     }
 }
 
 impl Processes {
     /// Names of the processes a trap can include, in the order the network adds them.
-    pub const NAMES: [&'static str; 4] = [
+    pub const NAMES: [&'static str; 6] = [
         "ionization",
         "radiative_recombination",
         "charge_exchange",
         "multiple_ionization",
+        "excitation_autoionization",
+        "dielectronic_recombination",
     ];
 
     /// The set named by `names` (each one of [`Processes::NAMES`]); the others are off.
@@ -114,6 +130,8 @@ impl Processes {
             multiple_ionization: false,
             radiative_recombination: false,
             charge_exchange: false,
+            excitation_autoionization: false,
+            dielectronic_recombination: false,
         };
         for name in names {
             match name.as_ref() {
@@ -121,6 +139,8 @@ impl Processes {
                 "radiative_recombination" => p.radiative_recombination = true,
                 "charge_exchange" => p.charge_exchange = true,
                 "multiple_ionization" => p.multiple_ionization = true,
+                "excitation_autoionization" => p.excitation_autoionization = true,
+                "dielectronic_recombination" => p.dielectronic_recombination = true,
                 other => {
                     return Err(Error::invalid(
                         "processes",
@@ -140,6 +160,8 @@ impl Processes {
             self.radiative_recombination,
             self.charge_exchange,
             self.multiple_ionization,
+            self.excitation_autoionization,
+            self.dielectronic_recombination,
         ];
         Self::NAMES
             .iter()
@@ -278,6 +300,37 @@ impl BeamTrap {
         Ok(nonzero_jumps(per_charge))
     }
 
+    /// Energy spread (FWHM, eV) of the beam's electrons: the beam's own setting, else the
+    /// space-charge default [`beam_energy_spread_ev`] with this trap's compensation.
+    pub fn energy_spread_ev(&self) -> f64 {
+        let b = &self.beam;
+        b.energy_spread_ev.unwrap_or_else(|| {
+            beam_energy_spread_ev(b.energy_ev, b.current_a, b.radius_m, self.compensation)
+        })
+    }
+
+    /// Excitation–autoionization rate q → q+1 (s⁻¹): (j/e)·σ_EA.
+    pub fn excitation_autoionization_rate_per_s(
+        &self,
+        element: &'static Element,
+        charge: u32,
+    ) -> Result<f64> {
+        let ion = element.ion(i64::from(charge))?;
+        Ok(self.beam.electron_flux_per_cm2_s() * ea_cross_section_cm2(&ion, self.beam.energy_ev))
+    }
+
+    /// Dielectronic-recombination rate q → q−1 (s⁻¹): (j/e)·Σ_r S_r G(E − E_r), the
+    /// resonances folded with the beam's energy spread.
+    pub fn dielectronic_rate_per_s(&self, element: &'static Element, charge: u32) -> Result<f64> {
+        let ion = element.ion(i64::from(charge))?;
+        Ok(self.beam.electron_flux_per_cm2_s()
+            * beam_cross_section_cm2(
+                &dr_resonances(&ion),
+                self.beam.energy_ev,
+                self.energy_spread_ev(),
+            ))
+    }
+
     /// Radiative-recombination rate of charge q → q−1 (s⁻¹): (j/e)·σ_RR (Kim & Pratt 1983).
     pub fn recombination_rate_per_s(&self, element: &'static Element, charge: u32) -> Result<f64> {
         let ion = element.ion(charge as i64)?;
@@ -347,6 +400,12 @@ impl BeamTrap {
                 net.add_rate(q as usize, q as usize + 1, flux * sigma)?;
             }
         }
+        if self.processes.excitation_autoionization {
+            for q in 0..z {
+                let rate = self.excitation_autoionization_rate_per_s(element, q)?;
+                net.add_rate(q as usize, q as usize + 1, rate)?;
+            }
+        }
         for q in 1..=z {
             let mut down = 0.0;
             if self.processes.radiative_recombination {
@@ -354,6 +413,9 @@ impl BeamTrap {
             }
             if self.processes.charge_exchange {
                 down += self.charge_exchange_rate_per_s(element, q);
+            }
+            if self.processes.dielectronic_recombination {
+                down += self.dielectronic_rate_per_s(element, q)?;
             }
             net.add_rate(q as usize, q as usize - 1, down)?;
         }
@@ -644,9 +706,68 @@ mod tests {
         assert_eq!(p.names(), vec!["ionization", "charge_exchange"]);
         assert_eq!(
             Processes::default().names(),
-            vec!["ionization", "radiative_recombination", "charge_exchange"]
+            vec![
+                "ionization",
+                "radiative_recombination",
+                "charge_exchange",
+                "excitation_autoionization",
+                "dielectronic_recombination"
+            ]
         );
         assert!(Processes::from_names(&["fusion"]).is_err());
+    }
+
+    #[test]
+    fn ea_and_dr_switched_off_leave_lotz_rr_and_cx_alone() {
+        let fe = element("Fe").unwrap();
+        let mut t = trap(4600.0);
+        t.processes.excitation_autoionization = false;
+        t.processes.dielectronic_recombination = false;
+        let off = t.network(fe).unwrap();
+        let flux = t.beam.electron_flux_per_cm2_s();
+        for q in 0..26u32 {
+            let up =
+                flux * ionization_cross_sections_cm2(fe, q as i64, &[4600.0], None).unwrap()[0];
+            let r = off.rate(q as usize, q as usize + 1);
+            assert!((r - up).abs() <= 1e-12 * up.max(1e-300), "{q}");
+        }
+        for q in 1..=26u32 {
+            let down =
+                t.recombination_rate_per_s(fe, q).unwrap() + t.charge_exchange_rate_per_s(fe, q);
+            let r = off.rate(q as usize, q as usize - 1);
+            assert!((r - down).abs() <= 1e-12 * down, "{q}");
+        }
+        // Switched on, the network adds exactly the EA and DR rates; at 4.6 keV He-like iron
+        // sits on its KLL resonances, and DR outweighs radiative recombination there.
+        let on = trap(4600.0).network(fe).unwrap();
+        let dr = t.dielectronic_rate_per_s(fe, 24).unwrap();
+        assert!(dr > t.recombination_rate_per_s(fe, 24).unwrap());
+        let d = on.rate(24, 23) - off.rate(24, 23);
+        assert!((d - dr).abs() <= 1e-12 * dr);
+        let ea = t.excitation_autoionization_rate_per_s(fe, 15).unwrap();
+        assert!(ea > 0.0);
+        assert!((on.rate(15, 16) - off.rate(15, 16) - ea).abs() <= 1e-9 * ea);
+    }
+
+    #[test]
+    fn the_beam_spread_setting_overrides_the_space_charge_default() {
+        let mut t = trap(4600.0);
+        let default = t.energy_spread_ev();
+        let b = &t.beam;
+        assert_eq!(
+            default,
+            beam_energy_spread_ev(b.energy_ev, b.current_a, b.radius_m, t.compensation)
+        );
+        t.beam = t.beam.clone().with_energy_spread(Some(5.0)).unwrap();
+        assert_eq!(t.energy_spread_ev(), 5.0);
+        assert!(t.beam.clone().with_energy_spread(Some(-1.0)).is_err());
+        // A narrower spread raises the peak of an on-resonance DR rate.
+        let fe = element("Fe").unwrap();
+        let kll = dr_resonances(&fe.ion(24).unwrap())[0].energy_ev;
+        t.beam.energy_ev = kll;
+        let narrow = t.dielectronic_rate_per_s(fe, 24).unwrap();
+        t.beam.energy_spread_ev = Some(200.0);
+        assert!(t.dielectronic_rate_per_s(fe, 24).unwrap() < narrow);
     }
 
     #[test]

@@ -375,6 +375,24 @@ pub struct ElectronBeam {
     pub current_a: f64,
     pub radius_m: f64,
     pub current_density_a_cm2: f64,
+    /// Energy spread (FWHM, eV) of the electrons; `None`: the trap's space-charge default
+    /// [`beam_energy_spread_ev`].
+    pub energy_spread_ev: Option<f64>,
+}
+
+/// Default energy spread (full width, eV) of a trap's electron beam: the space-charge
+/// potential difference between the axis and the edge of a uniform beam,
+/// (1 − f)·I/(4πε₀v) (Gauss's law; the depression with the drift tube at the beam edge),
+/// f the compensated fraction. Across a uniform beam the potential is parabolic in r and
+/// the area grows as r dr, so the electrons' energies are spread uniformly over this width
+/// around the mean; the cathode's thermal spread (≈ kT_c, 0.1 eV) is negligible beside it.
+pub fn beam_energy_spread_ev(
+    energy_ev: f64,
+    current_a: f64,
+    radius_m: f64,
+    compensation: f64,
+) -> f64 {
+    (1.0 - compensation) * space_charge_depression_v(current_a, energy_ev, radius_m, radius_m)
 }
 
 impl ElectronBeam {
@@ -393,6 +411,7 @@ impl ElectronBeam {
             current_a,
             radius_m,
             current_density_a_cm2: j,
+            energy_spread_ev: None,
         })
     }
 
@@ -416,7 +435,17 @@ impl ElectronBeam {
             current_a,
             radius_m,
             current_density_a_cm2,
+            energy_spread_ev: None,
         })
+    }
+
+    /// The same beam with a given energy spread (FWHM, eV, ≥ 0), or the default (`None`).
+    pub fn with_energy_spread(mut self, energy_spread_ev: Option<f64>) -> Result<Self> {
+        if let Some(v) = energy_spread_ev {
+            require_non_negative("energy_spread_ev", v)?;
+        }
+        self.energy_spread_ev = energy_spread_ev;
+        Ok(self)
     }
 
     /// Beam compressed to its Brillouin radius in a field B (T).

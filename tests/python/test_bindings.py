@@ -37,7 +37,13 @@ def test_a_trap_holds_the_settings_it_was_built_with(beam) -> None:
     # The defaults are the core's: 50 eV, 300 K, half the space charge compensated.
     plain = cc.BeamTrap(beam, 0.4)
     assert (plain.ion_temperature_ev, plain.gas_temperature_k, plain.compensation) == (50.0, 300.0, 0.5)
-    assert plain.processes == ["ionization", "radiative_recombination", "charge_exchange"]
+    assert plain.processes == [
+        "ionization",
+        "radiative_recombination",
+        "charge_exchange",
+        "excitation_autoionization",
+        "dielectronic_recombination",
+    ]
 
 
 def test_sources_are_read_only_and_take_their_options_by_keyword(beam) -> None:

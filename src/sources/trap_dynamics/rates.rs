@@ -8,6 +8,7 @@ use crate::error::{Error, Result};
 use crate::processes::beam_heating::landau_spitzer_heating_ev_per_s;
 use crate::processes::charge_exchange::gas_number_density_m3;
 use crate::processes::coulomb_logarithm::beam_ion_coulomb_log;
+use crate::processes::excitation_autoionization::single_ionization_cross_sections_cm2;
 use crate::processes::ion_lotz::ionization_cross_sections_cm2;
 
 use super::super::beam_trap::BeamTrap;
@@ -95,8 +96,17 @@ impl SpeciesRates {
         let flux_cm2_s = beam.electron_flux_per_cm2_s();
         let volume_m3 = std::f64::consts::PI * beam.radius_m * beam.radius_m * trap.length_m;
         let mut feed_per_s = 0.0;
-        let sigma0 =
-            ionization_cross_sections_cm2(element, 0, &[beam.energy_ev], trap.lotz_constants)?[0];
+        // The same single-ionization channels as the network's 0 → 1 step.
+        let sigma0 = if trap.processes.excitation_autoionization {
+            single_ionization_cross_sections_cm2(
+                element,
+                0,
+                &[beam.energy_ev],
+                trap.lotz_constants,
+            )?[0]
+        } else {
+            ionization_cross_sections_cm2(element, 0, &[beam.energy_ev], trap.lotz_constants)?[0]
+        };
         for feed in &dynamics.gas_feed {
             let atoms_per_molecule: u32 = feed
                 .gas
