@@ -79,6 +79,15 @@ from chargecast.spectrum import (
     overlaps,
 )
 
+# --- plasma source and its rate coefficients
+# isort: split
+from chargecast.plasma import (
+    PlasmaSource,
+    PlasmaState,
+    charge_exchange_rate_coefficient_cm3_s,
+    radiative_recombination_rate_coefficient_cm3_s,
+)
+
 # --- scenario files and reports
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
@@ -141,4 +150,8 @@ __all__ = [
     "Scenario",
     "bundled_scenarios",
     "load_scenario",
+    "PlasmaSource",
+    "PlasmaState",
+    "charge_exchange_rate_coefficient_cm3_s",
+    "radiative_recombination_rate_coefficient_cm3_s",
 ]

@@ -1,5 +1,5 @@
 //! Sources: turn a source description (electron-beam trap, photon beam, single-collision
-//! electron-impact source) into per-charge rates and rate networks
+//! electron-impact source, plasma source) into per-charge rates and rate networks
 //! ([`crate::network::RateNetwork`]), which [`crate::solve`] evolves.
 
 pub mod beam_trap;
@@ -8,6 +8,7 @@ pub mod electron_beam;
 pub mod electron_impact;
 pub mod energy_map;
 pub mod photon_beam;
+pub mod plasma;
 pub mod trap_dynamics;
 
 use ndarray::Array2;
@@ -20,6 +21,7 @@ pub use beam_trap::BeamTrap;
 pub use electron_beam::ElectronBeam;
 pub use electron_impact::{appearance_curves, ElectronImpactSource};
 pub use photon_beam::PhotonBeam;
+pub use plasma::PlasmaSource;
 
 /// One of the core sources, as a scenario builds it. Each variant is named like the
 /// scenario table, the module and the class stem of its source.
@@ -28,6 +30,7 @@ pub enum Source {
     BeamTrap(BeamTrap),
     PhotonBeam(PhotonBeam),
     ElectronImpact(ElectronImpactSource),
+    Plasma(PlasmaSource),
 }
 
 impl Source {
@@ -37,6 +40,7 @@ impl Source {
             Source::BeamTrap(_) => "beam_trap",
             Source::PhotonBeam(_) => "photon_beam",
             Source::ElectronImpact(_) => "electron_impact",
+            Source::Plasma(_) => "plasma",
         }
     }
 
@@ -51,6 +55,7 @@ impl Source {
         match self {
             Source::BeamTrap(t) => t.evolve(element, times_s, initial_charge),
             Source::PhotonBeam(p) => p.evolve(element, times_s, initial_charge),
+            Source::Plasma(p) => p.evolve(element, times_s, initial_charge),
             Source::ElectronImpact(_) => Err(Error::invalid(
                 "source",
                 "electron_impact",
@@ -59,7 +64,8 @@ impl Source {
         }
     }
 
-    /// The same source at another beam energy (electron or photon energy, eV).
+    /// The same source at another beam energy (electron or photon energy, eV; for a plasma
+    /// the cold electron temperature kT_e, eV).
     pub fn with_energy(&self, energy_ev: f64) -> Result<Source> {
         Ok(match self {
             Source::BeamTrap(t) => Source::BeamTrap(t.with_energy(energy_ev)?),
@@ -69,6 +75,7 @@ impl Source {
             Source::ElectronImpact(s) => {
                 Source::ElectronImpact(ElectronImpactSource::new(energy_ev, s.energy_spread_ev)?)
             }
+            Source::Plasma(p) => Source::Plasma(p.with_energy(energy_ev)?),
         })
     }
 
@@ -85,6 +92,7 @@ impl Source {
         // The grid is named as the source's own entry point names it, for error messages.
         let name = match self {
             Source::PhotonBeam(_) => "photon_energies_ev",
+            Source::Plasma(_) => "electron_temperatures_ev",
             _ => "energies_ev",
         };
         energy_time_map_with_progress(
