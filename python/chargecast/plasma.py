@@ -7,7 +7,8 @@ from __future__ import annotations
 
 import html
 import warnings
-from typing import Any, Mapping, Optional
+from collections.abc import Mapping
+from typing import Any, Optional
 
 import numpy as np
 
@@ -245,8 +246,8 @@ class PlasmaSource(_core.PlasmaSource):
     def __repr__(self) -> str:
         gases = ", ".join(f"{g}: {p:.3g} Pa" for g, p in self.gas_feed_pa.items())
         return (
-            f"PlasmaSource(kT_e={self.electron_temperature_ev:g} eV, n_e={self.electron_density_cm3:.3g} cm⁻³, "
-            f"gas_feed_pa={{{gases}}})"
+            f"PlasmaSource(kT_e={self.electron_temperature_ev:g} eV, "
+            f"n_e={self.electron_density_cm3:.3g} cm⁻³, gas_feed_pa={{{gases}}})"
         )
 
 

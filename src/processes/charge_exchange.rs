@@ -58,7 +58,9 @@ pub fn charge_exchange_rate_coefficient_cm3_s(
     ion_temperature_ev: f64,
     ion_mass_u: f64,
 ) -> f64 {
-    if !(recombined_binding_ev > target_ionization_ev) {
+    // NaN bindings compare false and close the channel too.
+    let exothermic = recombined_binding_ev > target_ionization_ev;
+    if !exothermic {
         return 0.0;
     }
     muller_salzborn_cross_section_cm2(charge, target_ionization_ev)
