@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import html
 import warnings
-from collections.abc import Mapping
 from typing import Any, Optional
 
 import numpy as np
@@ -156,9 +155,9 @@ class PlasmaSource(_core.PlasmaSource):
         electron_temperature_ev: float,
         electron_density_cm3: float,
         confinement_time_s: Any,
-        gas_feed_pa: Mapping[str, float],
+        gas_feed_pa: dict[str, float],
         confinement_exponent: Optional[float] = None,
-        residual_gas_pa: Optional[Mapping[str, float]] = None,
+        residual_gas_pa: Optional[dict[str, float]] = None,
         hot_electron_temperature_ev: Optional[float] = None,
         hot_electron_fraction: Optional[float] = None,
         ion_temperature_ev: Optional[float] = None,
