@@ -257,6 +257,16 @@ class PlasmaState(_core.PlasmaState):
     the element's atoms in the plasma), ``currents_eua`` (extracted, eµA),
     ``confinement_times_s``, ``feed_atoms_per_s``, ``outflow_atoms_per_s`` (equal in steady
     state), ``charge_density_ratio`` (Σ q n_q / n_e) and ``residual``.
+
+    Examples
+    --------
+    >>> src = PlasmaSource(electron_temperature_ev=1500.0, electron_density_cm3=5e11,
+    ...                    confinement_time_s=1e-3, gas_feed_pa={"Ar": 5e-7})
+    >>> state = src.steady_state("Ar")
+    >>> int(state.charges[-1]), round(float(state.fractions.sum()), 12)
+    (18, 1.0)
+    >>> bool(state.currents_eua[8] > 0)
+    True
     """
 
     __slots__ = ()
