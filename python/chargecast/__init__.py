@@ -92,6 +92,13 @@ from chargecast.indirect import (
     excitation_autoionization_cross_section_cm2,
     excitation_autoionization_rate_coefficient_cm3_s,
     ionization_cross_section_cm2,
+# --- plasma source and its rate coefficients
+# isort: split
+from chargecast.plasma import (
+    PlasmaSource,
+    PlasmaState,
+    charge_exchange_rate_coefficient_cm3_s,
+    radiative_recombination_rate_coefficient_cm3_s,
 )
 
 # --- scenario files and reports
@@ -166,4 +173,8 @@ __all__ = [
     "BreedingCycle",
     "breeding_cycle",
     "residual_gas_ions",
+    "PlasmaSource",
+    "PlasmaState",
+    "charge_exchange_rate_coefficient_cm3_s",
+    "radiative_recombination_rate_coefficient_cm3_s",
 ]

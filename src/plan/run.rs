@@ -336,6 +336,30 @@ fn ladder(s: &Scenario, source: &Source, el: &'static Element) -> Result<Ladder>
                 steps,
             });
         }
+        Source::Plasma(p) => {
+            // Maxwellian steps: time 1/(n_e S_q); the cross section shown is the effective
+            // ⟨σv⟩/⟨v⟩ of the electron distribution (⟨v⟩ of the cold Maxwellian).
+            let settings = p.settings();
+            let mean_speed_cm_s = crate::processes::lotz::maxwellian_speed_factor_cm_s()
+                * settings.electron_temperature_ev.sqrt();
+            let mut time = 0.0;
+            for i in 0..top {
+                let k = p.ionization_rate_coefficient_cm3_s(el, i)?;
+                let rate = settings.electron_density_cm3 * k;
+                time += if rate > 0.0 {
+                    1.0 / rate
+                } else {
+                    f64::INFINITY
+                };
+                steps.push(step(i, k / mean_speed_cm_s, Some(time), None)?);
+            }
+            return Ok(Ladder {
+                energy_ev,
+                current_density_a_cm2: None,
+                cross_section_kind: "lotz_maxwellian",
+                steps,
+            });
+        }
         Source::ElectronImpact(_) => {
             for b in breeding_ladder(el, i64::from(top), energy_ev, 1.0, None)? {
                 steps.push(step(

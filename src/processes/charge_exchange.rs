@@ -45,6 +45,29 @@ pub fn gas_number_density_m3(pressure_pa: f64, gas_temperature_k: f64) -> f64 {
     pressure_pa / (BOLTZMANN_J_K * gas_temperature_k)
 }
 
+/// Charge-exchange rate coefficient ⟨σ_CX v⟩ ≈ σ_CX(q, I_t)·v̄_ion (cm³ s⁻¹) of an ion of
+/// charge `charge`, mass `ion_mass_u` (u) and temperature kT_i = `ion_temperature_ev` on a
+/// gas at rest of first ionization energy I_t: Müller–Salzborn times the Maxwellian mean ion
+/// speed. The channel is closed (0) when the capture would be endothermic, i.e. when the
+/// recombined ion binds the captured electron (`recombined_binding_ev`, its ionization
+/// energy) no more strongly than the target does.
+pub fn charge_exchange_rate_coefficient_cm3_s(
+    charge: u32,
+    recombined_binding_ev: f64,
+    target_ionization_ev: f64,
+    ion_temperature_ev: f64,
+    ion_mass_u: f64,
+) -> f64 {
+    // NaN bindings compare false and close the channel too.
+    let exothermic = recombined_binding_ev > target_ionization_ev;
+    if !exothermic {
+        return 0.0;
+    }
+    muller_salzborn_cross_section_cm2(charge, target_ionization_ev)
+        * mean_ion_speed_m_s(ion_temperature_ev, ion_mass_u)
+        * 100.0
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -75,6 +98,19 @@ mod tests {
         // √(8·50·1.602176634e-19 / (π·39.948·1.66053906660e-27)) = 17536.31 m/s
         let v = mean_ion_speed_m_s(50.0, 39.948);
         assert!((v - 17_536.308_9).abs() < 1e-3, "{v}");
+    }
+
+    #[test]
+    fn rate_coefficient_is_cross_section_times_mean_speed() {
+        // Ar8+ (39.948 u, kT = 1 eV) on O2 (I = 12.0697 eV): σ·v̄ with v̄ = √(8kT/πm).
+        let k = charge_exchange_rate_coefficient_cm3_s(8, 143.46, 12.0697, 1.0, 39.948);
+        let hand = muller_salzborn_cross_section_cm2(8, 12.0697) * 2_480.0 * 100.0;
+        assert!((k / hand - 1.0).abs() < 1e-3, "{k:e} vs {hand:e}");
+        // Endothermic capture (the recombined ion binds less than the target) is closed.
+        assert_eq!(
+            charge_exchange_rate_coefficient_cm3_s(1, 12.0, 15.4, 1.0, 40.0),
+            0.0
+        );
     }
 
     #[test]

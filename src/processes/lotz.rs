@@ -161,7 +161,7 @@ pub fn lotz_cross_sections_cm2(shells: &[LotzShell], energies_ev: &[f64]) -> Res
 }
 
 /// √(8·(1 eV)/(π m_e)) in cm/s: the mean speed factor of a Maxwellian with kT = 1 eV.
-pub(crate) fn maxwellian_speed_factor_cm_s() -> f64 {
+pub fn maxwellian_speed_factor_cm_s() -> f64 {
     (8.0 * ELEMENTARY_CHARGE_C / (std::f64::consts::PI * ELECTRON_MASS_KG)).sqrt() * 100.0
 }
 

@@ -20,6 +20,7 @@ pub mod lotz;
 pub mod photoionization;
 pub mod radial_well;
 pub mod radiative_recombination;
+pub mod radiative_recombination_rate;
 pub mod relaxation;
 pub mod special;
 pub mod vacancy_jumps;

@@ -61,13 +61,25 @@ pub fn kim_pratt_cross_section_cm2(
     if charge == 0 || charge > z || valence_n == 0 || energy_ev.is_nan() || energy_ev <= 0.0 {
         return 0.0;
     }
+    let (z_eff, n_eff) = kim_pratt_effective_charge_and_n(z, charge, valence_n, valence_occupancy);
+    let chi = 2.0 * z_eff * z_eff * RYDBERG_EV / energy_ev;
+    kim_pratt_prefactor_cm2() * chi * (chi / (2.0 * n_eff * n_eff)).ln_1p()
+}
+
+/// Kim–Pratt's effective charge Z_eff = (Z + q)/2 and effective principal quantum number
+/// n_eff = n₀ + (1 − W) − 0.3 of the capturing ion (the one definition of both, shared by the
+/// cross section and its Maxwellian average).
+pub fn kim_pratt_effective_charge_and_n(
+    z: u32,
+    charge: u32,
+    valence_n: u32,
+    valence_occupancy: u32,
+) -> (f64, f64) {
     let z_eff = 0.5 * (f64::from(z) + f64::from(charge));
     let n0 = f64::from(valence_n);
     let states = 2.0 * n0 * n0;
     let unoccupied_fraction = ((states - f64::from(valence_occupancy)) / states).clamp(0.0, 1.0);
-    let n_eff = n0 + (1.0 - unoccupied_fraction) - 0.3;
-    let chi = 2.0 * z_eff * z_eff * RYDBERG_EV / energy_ev;
-    kim_pratt_prefactor_cm2() * chi * (chi / (2.0 * n_eff * n_eff)).ln_1p()
+    (z_eff, n0 + (1.0 - unoccupied_fraction) - 0.3)
 }
 
 /// [`kim_pratt_cross_section_cm2`] at each energy, with validated arguments.

@@ -15,6 +15,7 @@ mod limits;
 mod photon_beam;
 mod plan;
 mod processes_indirect;
+mod plasma;
 mod rate_equations;
 mod results;
 mod spectrum;
@@ -45,5 +46,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     trap_dynamics::register(m)?;
     rib_cycle::register(m)?;
     processes_indirect::register(m)?;
+    plasma::register(m)?;
     Ok(())
 }

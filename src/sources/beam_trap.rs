@@ -40,11 +40,12 @@
 use super::electron_beam::{beam_energy_spread_ev, electrons_in_trap, ElectronBeam};
 use super::photon_beam::{photon_network, PhotonBeam};
 use crate::atoms::Element;
-use crate::constants::{ATOMIC_MASS_UNIT_KG, ELEMENTARY_CHARGE_C};
 use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
-use crate::processes::charge_exchange::{gas_number_density_m3, muller_salzborn_cross_section_cm2};
 use crate::processes::dielectronic::{beam_cross_section_cm2, resonances as dr_resonances};
+use crate::processes::charge_exchange::{
+    charge_exchange_rate_coefficient_cm3_s, gas_number_density_m3,
+};
 use crate::processes::double_ionization::direct_double_ionization_cm2;
 use crate::processes::excitation_autoionization::cross_section_cm2 as ea_cross_section_cm2;
 use crate::processes::gases::{gas, Gas};
@@ -348,10 +349,6 @@ impl BeamTrap {
         if charge == 0 {
             return 0.0;
         }
-        let mass_kg = element.atomic_weight_u() * ATOMIC_MASS_UNIT_KG;
-        let speed_m_s = (8.0 * self.ion_temperature_ev * ELEMENTARY_CHARGE_C
-            / (std::f64::consts::PI * mass_kg))
-            .sqrt();
         let recombined_binding_ev = element
             .ionization_energies_ev()
             .get(charge as usize - 1)
@@ -359,13 +356,16 @@ impl BeamTrap {
             .unwrap_or(0.0);
         self.residual_gas
             .iter()
-            .filter(|g| recombined_binding_ev > g.gas.ionization_energy_ev)
             .map(|g| {
                 let n_cm3 = gas_number_density_m3(g.pressure_pa, self.gas_temperature_k) * 1e-6;
                 n_cm3
-                    * muller_salzborn_cross_section_cm2(charge, g.gas.ionization_energy_ev)
-                    * speed_m_s
-                    * 100.0
+                    * charge_exchange_rate_coefficient_cm3_s(
+                        charge,
+                        recombined_binding_ev,
+                        g.gas.ionization_energy_ev,
+                        self.ion_temperature_ev,
+                        element.atomic_weight_u(),
+                    )
             })
             .sum()
     }

@@ -1,5 +1,5 @@
 //! Sources: turn a source description (electron-beam trap, photon beam, single-collision
-//! electron-impact source) into per-charge rates and rate networks
+//! electron-impact source, plasma source) into per-charge rates and rate networks
 //! ([`crate::network::RateNetwork`]), which [`crate::solve`] evolves.
 
 pub mod beam_trap;
@@ -10,6 +10,7 @@ pub mod energy_map;
 pub mod photon_beam;
 pub mod residual_gas;
 pub mod rib_cycle;
+pub mod plasma;
 pub mod trap_dynamics;
 
 use ndarray::Array2;
@@ -22,6 +23,7 @@ pub use beam_trap::BeamTrap;
 pub use electron_beam::ElectronBeam;
 pub use electron_impact::{appearance_curves, ElectronImpactSource};
 pub use photon_beam::PhotonBeam;
+pub use plasma::PlasmaSource;
 
 /// One of the core sources, as a scenario builds it. Each variant is named like the
 /// scenario table, the module and the class stem of its source.
@@ -30,6 +32,7 @@ pub enum Source {
     BeamTrap(BeamTrap),
     PhotonBeam(PhotonBeam),
     ElectronImpact(ElectronImpactSource),
+    Plasma(PlasmaSource),
 }
 
 impl Source {
@@ -39,6 +42,7 @@ impl Source {
             Source::BeamTrap(_) => "beam_trap",
             Source::PhotonBeam(_) => "photon_beam",
             Source::ElectronImpact(_) => "electron_impact",
+            Source::Plasma(_) => "plasma",
         }
     }
 
@@ -53,6 +57,7 @@ impl Source {
         match self {
             Source::BeamTrap(t) => t.evolve(element, times_s, initial_charge),
             Source::PhotonBeam(p) => p.evolve(element, times_s, initial_charge),
+            Source::Plasma(p) => p.evolve(element, times_s, initial_charge),
             Source::ElectronImpact(_) => Err(Error::invalid(
                 "source",
                 "electron_impact",
@@ -61,7 +66,8 @@ impl Source {
         }
     }
 
-    /// The same source at another beam energy (electron or photon energy, eV).
+    /// The same source at another beam energy (electron or photon energy, eV; for a plasma
+    /// the cold electron temperature kT_e, eV).
     pub fn with_energy(&self, energy_ev: f64) -> Result<Source> {
         Ok(match self {
             Source::BeamTrap(t) => Source::BeamTrap(t.with_energy(energy_ev)?),
@@ -71,6 +77,7 @@ impl Source {
             Source::ElectronImpact(s) => {
                 Source::ElectronImpact(ElectronImpactSource::new(energy_ev, s.energy_spread_ev)?)
             }
+            Source::Plasma(p) => Source::Plasma(p.with_energy(energy_ev)?),
         })
     }
 
@@ -87,6 +94,7 @@ impl Source {
         // The grid is named as the source's own entry point names it, for error messages.
         let name = match self {
             Source::PhotonBeam(_) => "photon_energies_ev",
+            Source::Plasma(_) => "electron_temperatures_ev",
             _ => "energies_ev",
         };
         energy_time_map_with_progress(
