@@ -18,6 +18,7 @@ mod rate_equations;
 mod results;
 mod spectrum;
 mod trap_dynamics;
+mod uncertainty;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 
@@ -40,5 +41,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     plan::register(m)?;
     limits::register(m)?;
     trap_dynamics::register(m)?;
+    uncertainty::register(m)?;
     Ok(())
 }

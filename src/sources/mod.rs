@@ -9,6 +9,7 @@ pub mod electron_impact;
 pub mod energy_map;
 pub mod photon_beam;
 pub mod trap_dynamics;
+pub mod uncertainty;
 
 use ndarray::Array2;
 
