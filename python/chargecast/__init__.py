@@ -83,6 +83,11 @@ from chargecast.spectrum import (
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
 
+# --- fits and Monte Carlo bands (cluster runs: chargecast.dask, imported on use)
+# isort: split
+from chargecast.fit import FitResult, TrapFitModel, fit_charge_distribution
+from chargecast.uncertainty import EvolutionBands, best_energy_band
+
 __version__: str = _core.__version__
 
 __all__ = [
@@ -141,4 +146,9 @@ __all__ = [
     "Scenario",
     "bundled_scenarios",
     "load_scenario",
+    "EvolutionBands",
+    "FitResult",
+    "TrapFitModel",
+    "best_energy_band",
+    "fit_charge_distribution",
 ]

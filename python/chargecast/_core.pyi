@@ -1017,3 +1017,22 @@ def _dynamic_system(
     gas_feed_pa: dict[str, float] | None = None,
     dynamics: dict[str, bool] | None = None,
 ) -> DynamicSystem: ...
+
+# --- Monte Carlo samples and trap variants (chargecast.uncertainty, chargecast.fit)
+def _monte_carlo_evolve(
+    trap: BeamTrap,
+    element: str | int,
+    times_s: ArrayLike,
+    *,
+    samples: int,
+    seed: int,
+    first_sample: int | None = None,
+    initial_charge: int | None = None,
+    ionization_factor: float,
+    recombination_factor: float,
+    charge_exchange_factor: float,
+    charge_correlation: float,
+) -> NDArray[np.float64]: ...
+def _evolve_traps(
+    traps: Iterable[BeamTrap], element: str | int, times_s: ArrayLike, *, initial_charge: int | None = None
+) -> NDArray[np.float64]: ...

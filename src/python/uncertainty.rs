@@ -28,7 +28,7 @@ fn initial_charge_arg(
 /// correlation ρ between the charges of a process); sample ``i`` of ``seed`` is the same
 /// whatever ``first_sample`` and ``samples`` split the run into.
 #[pyfunction]
-#[pyo3(signature = (trap, element, times_s, *, samples, seed, first_sample=0, initial_charge=None,
+#[pyo3(signature = (trap, element, times_s, *, samples, seed, first_sample=None, initial_charge=None,
                     ionization_factor, recombination_factor, charge_exchange_factor, charge_correlation))]
 #[allow(clippy::too_many_arguments)]
 fn _monte_carlo_evolve<'py>(
