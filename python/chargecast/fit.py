@@ -385,7 +385,14 @@ def fit_charge_distribution(
         r = residuals_many(xs)
         return ((r[1:] - r[0]) / np.array(h)[:, None]).T
 
-    sol = least_squares(fun, np.array(start), jac=jac, bounds=(lows_a, highs_a), method="trf", x_scale="jac")
+    # A coarse grid over the bounds (one core batch) picks the start, so the local optimiser
+    # does not stall in a far-off valley; the model's nominal point competes with it.
+    per_axis = min(5, max(2, int(round(256 ** (1.0 / len(names))))))
+    axes = [np.linspace(lo + 0.1 * (hi - lo), hi - 0.1 * (hi - lo), per_axis) for lo, hi in zip(lows_a, highs_a)]
+    grid = [np.array(start)] + [np.array(g) for g in np.stack(np.meshgrid(*axes), -1).reshape(-1, len(names))]
+    chi_grid = (residuals_many(grid) ** 2).sum(axis=1)
+    x_start = grid[int(np.nanargmin(np.where(np.isfinite(chi_grid), chi_grid, np.inf)))]
+    sol = least_squares(fun, x_start, jac=jac, bounds=(lows_a, highs_a), method="trf", x_scale="jac")
     x = sol.x
     r = fun(x)
     j = jac(x)
