@@ -124,6 +124,14 @@ class TrapFitModel:
         Confinement time (s) at which the distribution was measured.
     initial_charge : int
         Charge of the injected atoms or ions.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> trap = cc.BeamTrap(cc.ElectronBeam(energy_ev=2000.0, current_a=0.05, radius_m=1e-4), length_m=0.5)
+    >>> model = cc.TrapFitModel(trap, "Ar", time_s=0.1)
+    >>> model.evaluate([{"energy_ev": 3000.0}]).shape
+    (1, 19)
     """
 
     def __init__(self, trap: Any, element: Any, time_s: float, initial_charge: int = 0):
@@ -210,6 +218,26 @@ class FitResult:
     charges, measured, uncertainties, model : ndarray
         The fitted charges, data, their 1-σ and the best-fit model (same units as the data).
     """
+
+    element: str
+    names: list[str]
+    log_scaled: dict[str, bool]
+    parameters: dict[str, float]
+    sigma: dict[str, float]
+    intervals: dict[str, tuple[float, float]]
+    covariance: np.ndarray
+    chi2: float
+    dof: int
+    reduced_chi2: float
+    unconstrained: list[str]
+    scans: dict[str, tuple[np.ndarray, np.ndarray]]
+    charges: np.ndarray
+    measured: np.ndarray
+    uncertainties: np.ndarray
+    model: np.ndarray
+    quantity: str
+    success: bool
+    evaluations: int
 
     def __init__(self, **kw: Any):
         self.__dict__.update(kw)
@@ -306,6 +334,19 @@ def fit_charge_distribution(
     Returns
     -------
     FitResult
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> beam = cc.ElectronBeam(energy_ev=2000.0, current_a=0.05, current_density_a_cm2=100.0)
+    >>> trap = cc.BeamTrap(beam, length_m=0.5, residual_gas_pa={"H2": 3e-7})
+    >>> model = cc.TrapFitModel(trap, "Ar", time_s=0.1)
+    >>> f = model.evaluate([{}])[0]
+    >>> data = {q: f[q] for q in range(13, 17)}
+    >>> fit = cc.fit_charge_distribution(model, data, free={"current_density_a_cm2": (10, 1000)},
+    ...                                  uncertainties={q: 0.01 for q in data})
+    >>> round(fit.parameters["current_density_a_cm2"])
+    100
     """
     try:
         from scipy.optimize import least_squares
@@ -388,7 +429,9 @@ def fit_charge_distribution(
     # A coarse grid over the bounds (one core batch) picks the start, so the local optimiser
     # does not stall in a far-off valley; the model's nominal point competes with it.
     per_axis = min(5, max(2, int(round(256 ** (1.0 / len(names))))))
-    axes = [np.linspace(lo + 0.1 * (hi - lo), hi - 0.1 * (hi - lo), per_axis) for lo, hi in zip(lows_a, highs_a)]
+    axes = [
+        np.linspace(lo + 0.1 * (hi - lo), hi - 0.1 * (hi - lo), per_axis) for lo, hi in zip(lows_a, highs_a)
+    ]
     grid = [np.array(start)] + [np.array(g) for g in np.stack(np.meshgrid(*axes), -1).reshape(-1, len(names))]
     chi_grid = (residuals_many(grid) ** 2).sum(axis=1)
     x_start = grid[int(np.nanargmin(np.where(np.isfinite(chi_grid), chi_grid, np.inf)))]
@@ -422,14 +465,14 @@ def fit_charge_distribution(
     scans: dict[str, tuple[np.ndarray, np.ndarray]] = {}
     for n in unconstrained:
         i = names.index(n)
-        grid = np.linspace(lows_a[i], highs_a[i], max(int(scan_points), 2))
+        line = np.linspace(lows_a[i], highs_a[i], max(int(scan_points), 2))
         xs = []
-        for g in grid:
+        for g in line:
             xg = x.copy()
             xg[i] = g
             xs.append(xg)
         chi = (residuals_many(xs) ** 2).sum(axis=1)
-        scans[n] = (10**grid if logs[i] else grid, chi)
+        scans[n] = (10**line if logs[i] else line, chi)
     chi2 = float((r**2).sum())
     return FitResult(
         element=model.element,

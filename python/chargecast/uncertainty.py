@@ -231,7 +231,16 @@ def best_energy_band(
     factors: Optional[Mapping[str, float]] = None,
 ) -> tuple[float, float, float]:
     """5th, 50th and 95th percentile (eV) of the energy giving the largest fraction of
-    ``charge`` (over ``times_s``). Sample ``i`` keeps its factors at every energy."""
+    ``charge`` (over ``times_s``). Sample ``i`` keeps its factors at every energy.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> trap = cc.BeamTrap(cc.ElectronBeam(energy_ev=2000.0, current_a=0.05, radius_m=1e-4), length_m=0.5)
+    >>> lo, mid, hi = cc.best_energy_band(trap, "Ar", 16, [1000.0, 3000.0], [0.01, 0.1], samples=10)
+    >>> lo <= mid <= hi
+    True
+    """
     q = _core._as_int("charge", charge)
     energies = np.asarray(_core._as_float_array("energies_ev", energies_ev), dtype=float).reshape(-1)
     best = np.full((samples, len(energies)), -np.inf)
