@@ -232,6 +232,7 @@ impl ProcessNetworks {
 
 /// Populations `[samples, times, Z+1]` of samples `first_sample … first_sample+count−1`
 /// of `seed` for atoms of `element` starting in `initial_charge`, solved in parallel.
+#[allow(clippy::too_many_arguments)] // each is a separate setting of the run
 pub fn monte_carlo(
     trap: &BeamTrap,
     element: &'static Element,
