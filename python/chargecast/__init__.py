@@ -105,6 +105,11 @@ from chargecast.plasma import (
 # isort: split
 from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenario
 
+# --- fits and Monte Carlo bands (cluster runs: chargecast.dask, imported on use)
+# isort: split
+from chargecast.fit import FitResult, TrapFitModel, fit_charge_distribution
+from chargecast.uncertainty import EvolutionBands, best_energy_band
+
 __version__: str = _core.__version__
 
 __all__ = [
@@ -177,4 +182,9 @@ __all__ = [
     "PlasmaState",
     "charge_exchange_rate_coefficient_cm3_s",
     "radiative_recombination_rate_coefficient_cm3_s",
+    "EvolutionBands",
+    "FitResult",
+    "TrapFitModel",
+    "best_energy_band",
+    "fit_charge_distribution",
 ]

@@ -1203,3 +1203,21 @@ class PlasmaSource:
     def evolve(self, element: str | int, times_s: ArrayLike) -> Evolution: ...
     def evolve_densities_cm3(self, element: str | int, times_s: ArrayLike) -> NDArray[np.float64]: ...
     def rates(self, element: str | int) -> NDArray[np.float64]: ...
+# --- Monte Carlo samples and trap variants (chargecast.uncertainty, chargecast.fit)
+def _monte_carlo_evolve(
+    trap: BeamTrap,
+    element: str | int,
+    times_s: ArrayLike,
+    *,
+    samples: int,
+    seed: int,
+    first_sample: int | None = None,
+    initial_charge: int | None = None,
+    ionization_factor: float,
+    recombination_factor: float,
+    charge_exchange_factor: float,
+    charge_correlation: float,
+) -> NDArray[np.float64]: ...
+def _evolve_traps(
+    traps: Iterable[BeamTrap], element: str | int, times_s: ArrayLike, *, initial_charge: int | None = None
+) -> NDArray[np.float64]: ...

@@ -30,6 +30,62 @@ class BeamTrap(_core.BeamTrap):
 
     __slots__ = ()
 
+    def evolve(  # type: ignore[override]
+        self,
+        element: Any,
+        times_s: Any,
+        initial_charge: Optional[int] = None,
+        *,
+        samples: Optional[int] = None,
+        seed: int = 0,
+        factors: Optional[Any] = None,
+        client: Any = None,
+        chunk: int = 100,
+    ) -> Any:
+        """Charge-state fractions over time; with ``samples``, Monte Carlo bands too.
+
+        Parameters
+        ----------
+        element : str or int
+            Symbol, name or Z.
+        times_s : array_like
+            Output times (s), ascending, ≥ 0.
+        initial_charge : int, optional
+            Charge of the injected atoms or ions (0 = neutral atoms).
+        samples : int, optional
+            Number of Monte Carlo samples over the process uncertainty factors.
+        seed : int
+            Seed of the samples (sample ``i`` of a seed is reproducible on its own).
+        factors : dict, optional
+            1-σ factors ``ionization_factor``, ``recombination_factor``,
+            ``charge_exchange_factor`` and ``charge_correlation`` (defaults 1.35, 1.5, 2, 0.5).
+        client : dask.distributed.Client, optional
+            Run the samples on this cluster (same bits as locally).
+        chunk : int
+            Samples per cluster task.
+
+        Returns
+        -------
+        Evolution, or EvolutionBands with ``samples`` (``.percentile(5/50/95)``)
+        """
+        if samples is None:
+            if factors is not None or client is not None:
+                raise _core.InvalidParameterError("invalid arguments: factors and client need samples=N")
+            return _core.BeamTrap.evolve(self, element, times_s, initial_charge)
+        from chargecast.uncertainty import evolve_bands
+
+        return evolve_bands(
+            self,
+            element,
+            times_s,
+            samples=samples,
+            seed=seed,
+            initial_charge=0 if initial_charge is None else initial_charge,
+            factors=factors,
+            client=client,
+            chunk=chunk,
+        )
+
     def sweep(self, elements: Any, energies_ev: Any, times_s: Any) -> Any:  # type: ignore[override]
         """Charge-state fractions of several elements over energies × times, in parallel,
         as a labelled table.

@@ -22,6 +22,7 @@ mod spectrum;
 mod trap_dynamics;
 // Radioactive-beam breeding cycle and residual-gas ions (issue 11).
 mod rib_cycle;
+mod uncertainty;
 
 pub(crate) use convert::{element_arg, guard, matrix_to_py, to_py, vec_arg};
 
@@ -47,5 +48,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     rib_cycle::register(m)?;
     processes_indirect::register(m)?;
     plasma::register(m)?;
+    uncertainty::register(m)?;
     Ok(())
 }

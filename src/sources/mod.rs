@@ -12,6 +12,7 @@ pub mod residual_gas;
 pub mod rib_cycle;
 pub mod plasma;
 pub mod trap_dynamics;
+pub mod uncertainty;
 
 use ndarray::Array2;
 

@@ -24,6 +24,8 @@ RESULT_CLASSES = {
     "EnergyScan",
     "Report",
     "Scenario",
+    "EvolutionBands",
+    "FitResult",
 }
 
 
