@@ -42,10 +42,10 @@ use super::photon_beam::{photon_network, PhotonBeam};
 use crate::atoms::Element;
 use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
-use crate::processes::dielectronic::{beam_cross_section_cm2, resonances as dr_resonances};
 use crate::processes::charge_exchange::{
     charge_exchange_rate_coefficient_cm3_s, gas_number_density_m3,
 };
+use crate::processes::dielectronic::{beam_cross_section_cm2, resonances as dr_resonances};
 use crate::processes::double_ionization::direct_double_ionization_cm2;
 use crate::processes::excitation_autoionization::cross_section_cm2 as ea_cross_section_cm2;
 use crate::processes::gases::{gas, Gas};

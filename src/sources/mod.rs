@@ -8,9 +8,9 @@ pub mod electron_beam;
 pub mod electron_impact;
 pub mod energy_map;
 pub mod photon_beam;
+pub mod plasma;
 pub mod residual_gas;
 pub mod rib_cycle;
-pub mod plasma;
 pub mod trap_dynamics;
 pub mod uncertainty;
 

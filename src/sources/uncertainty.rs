@@ -4,7 +4,8 @@
 //!
 //! # Model
 //!
-//! Each process p (ionization, radiative recombination, charge exchange) has a 1-σ
+//! Each process p (ionization with excitation–autoionization, recombination radiative and
+//! dielectronic, charge exchange) has a 1-σ
 //! multiplicative uncertainty f_p. The rate of charge q by process p is scaled by
 //!
 //!   k_{p,q} = exp( ln f_p · (√ρ · z_p + √(1−ρ) · z_{p,q}) ),
@@ -173,6 +174,10 @@ impl ProcessNetworks {
                 multiple_ionization: trap.processes.multiple_ionization,
                 radiative_recombination: recombination && trap.processes.radiative_recombination,
                 charge_exchange: charge_exchange && trap.processes.charge_exchange,
+                // Indirect channels share the factor of their direct partner.
+                excitation_autoionization: ionization && trap.processes.excitation_autoionization,
+                dielectronic_recombination: recombination
+                    && trap.processes.dielectronic_recombination,
             };
             t.loss_per_s = Vec::new();
             t.feed = None;
