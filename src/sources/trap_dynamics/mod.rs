@@ -74,6 +74,15 @@ pub const DEFAULT_DRIFT_TUBE_RADIUS_M: f64 = 5e-3;
 /// Default relative tolerance of the nonlinear solve.
 pub const DEFAULT_RTOL: f64 = 1e-8;
 
+/// Atoms loaded when a species is named without an amount: a trace, 1e-3 of the electrons
+/// in the trap, so that its ions barely change the space charge.
+pub const DEFAULT_LOAD_PER_ELECTRON: f64 = 1e-3;
+
+/// The trace load of [`DEFAULT_LOAD_PER_ELECTRON`] for `trap`.
+pub fn default_load(trap: &BeamTrap) -> f64 {
+    DEFAULT_LOAD_PER_ELECTRON * trap.electrons_in_trap()
+}
+
 /// Which dynamic processes are on (all but ionization heating by default).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct DynamicsSwitches {
