@@ -392,6 +392,9 @@ impl PyBeamTrap {
     /// initial_charge : int
     ///     Charge state of the injected atoms or ions (0 = neutral atoms); fixed model only
     ///     (the dynamic model injects neutral atoms).
+    /// rtol : float, optional
+    ///     Relative tolerance of the dynamic model's stiff solve, 1e-14 … 1e-2 (1e-8 by
+    ///     default); dynamic model only.
     ///
     /// Returns
     /// -------
@@ -400,15 +403,20 @@ impl PyBeamTrap {
     ///     ``peak()``, ``plot()`` …). Dynamic model: ``DynamicRun`` (``fractions(species)``,
     ///     ``ions``, ``temperatures_ev``, ``escape_per_s``, ``overlap`` [T, Z+1],
     ///     ``compensation``, ``well_depth_v`` [T], bookkeeping).
-    #[pyo3(signature = (element, times_s, initial_charge=None))]
+    #[pyo3(signature = (element, times_s, initial_charge=None, *, rtol=None))]
     fn evolve<'py>(
         &self,
         py: Python<'py>,
         element: &Bound<'py, PyAny>,
         times_s: &Bound<'py, PyAny>,
         initial_charge: Option<&Bound<'py, PyAny>>,
+        rtol: Option<&Bound<'py, PyAny>>,
     ) -> PyResult<Bound<'py, PyAny>> {
-        if self.inner.model.dynamics().is_some() {
+        let rtol = rtol
+            .filter(|v| !v.is_none())
+            .map(|v| float_arg("rtol", v))
+            .transpose()?;
+        if let Some(d) = self.inner.model.dynamics() {
             if let Some(q) = initial_charge.filter(|v| !v.is_none()) {
                 if int_arg("initial_charge", q)? != 0 {
                     return Err(Error::invalid(
@@ -421,9 +429,21 @@ impl PyBeamTrap {
             }
             let loads = super::trap_dynamics::loads_arg(&self.inner, element)?;
             let times = times_arg(times_s)?;
+            let mut d = d.clone();
+            if let Some(r) = rtol {
+                d.rtol = crate::sources::trap_dynamics::require_rtol(r)?;
+            }
             let core = self.inner.clone();
-            let run = guard(py, || core.evolve_dynamic(&loads, &times))?;
+            let run = guard(py, || d.evolve(&core, &loads, &times))?;
             return super::trap_dynamics::PyDynamicRun::result(py, run);
+        }
+        if rtol.is_some() {
+            return Err(Error::invalid(
+                "rtol",
+                "set",
+                "sets the dynamic model's solver: the fixed model is solved exactly",
+            )
+            .into());
         }
         let el = fixed_element_arg(element)?;
         let times = times_arg(times_s)?;

@@ -74,6 +74,15 @@ pub const DEFAULT_DRIFT_TUBE_RADIUS_M: f64 = 5e-3;
 /// Default relative tolerance of the nonlinear solve.
 pub const DEFAULT_RTOL: f64 = 1e-8;
 
+/// The one rule for the solver's relative tolerance: 1e-14 … 1e-2.
+pub fn require_rtol(rtol: f64) -> Result<f64> {
+    if rtol.is_finite() && (1e-14..=1e-2).contains(&rtol) {
+        Ok(rtol)
+    } else {
+        Err(Error::invalid("rtol", rtol, "must lie in 1e-14 … 1e-2"))
+    }
+}
+
 /// Atoms loaded when a species is named without an amount: a trace, 1e-3 of the electrons
 /// in the trap, so that its ions barely change the space charge.
 pub const DEFAULT_LOAD_PER_ELECTRON: f64 = 1e-3;
