@@ -989,6 +989,7 @@ class Report:
 
 # --- ion dynamics of the beam trap (src/python/trap_dynamics.rs)
 
+@disjoint_base
 class DynamicRun:
     def __new__(cls) -> DynamicRun: ...
     @property
