@@ -58,6 +58,9 @@ pub fn forward_difference_jacobian<S: StiffSystem + ?Sized>(
     }
 }
 
+/// Most steps one solve may take.
+const MAX_STEPS: usize = 1_000_000;
+
 /// Work counters of the last stiff solve on this thread (for benchmarks and tuning).
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct StiffStatistics {
@@ -121,7 +124,7 @@ pub fn integrate_stiff<S: StiffSystem>(
         RefCell::new((vec![f64::NAN; n], Array2::zeros((n, n))));
     let scale = tolerances.atol.clone();
     let y0 = initial.to_vec();
-    let problem = OdeBuilder::<NalgebraMat<f64>>::new()
+    let mut problem = OdeBuilder::<NalgebraMat<f64>>::new()
         .rtol(tolerances.rtol)
         .atol(tolerances.atol.clone())
         .rhs_implicit(
@@ -145,6 +148,9 @@ pub fn integrate_stiff<S: StiffSystem>(
         )
         .build()
         .map_err(solver_error)?;
+    // diffsol stops after 5000 steps by default; tight tolerances over long times need
+    // more, and the interrupt check below lets a caller stop a long solve instead.
+    problem.ode_options.max_number_timesteps = MAX_STEPS;
     let mut solver = problem.bdf::<NalgebraLU<f64>>().map_err(solver_error)?;
     // Step by step (not diffsol's one-call dense solve) so that a stop request is seen
     // between steps: each step costs at most a few Jacobians, well under the 0.5 s the
