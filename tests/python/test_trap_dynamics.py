@@ -82,7 +82,7 @@ def test_the_solve_matches_scipy_radau_on_the_exported_rhs():
     loads = {"Ar": 1e7}
     system = _core._dynamic_system(trap, loads)
     y0 = np.array(system.initial_state)
-    times = np.array([1e-4, 1e-3, 1e-2, 3e-2])
+    times = np.array([1e-4, 1e-3, 1e-2])
     ref = solve_ivp(
         lambda _t, y: system.rhs(y),
         (0.0, times[-1]),
@@ -130,6 +130,23 @@ def test_light_ions_leave_first():
     run = _trap(axial_barrier_v=100.0).evolve({"Ar": 1e7, "Ne": 1e7}, [0.05])
     left = {name: run.ions(name)[0, 1:].sum() for name in ("Ar", "Ne")}
     assert left["Ne"] < left["Ar"]
+
+
+def test_a_light_coolant_raises_high_charge_states_and_cools():
+    # Penetrante et al. (1991); Levine et al. (1988): nitrogen fed in as a light coolant
+    # takes heat from the heavy ions and escapes with it; the heavy ions stay colder, closer
+    # to the beam axis, and ionize further. Argon here (krypton behaves alike, slower to run).
+    beam = cc.ElectronBeam(6000.0, 0.2, current_density_a_cm2=400.0)
+
+    def run(feed):
+        trap = cc.BeamTrap(
+            beam, length_m=0.6, residual_gas_pa={"H2": 1e-9}, model="dynamic", axial_barrier_v=300.0, **feed
+        )
+        return trap.evolve({"Ar": 1e8}, [0.1, 0.5])
+
+    hot, cooled = run({}), run({"gas_feed_pa": {"N2": 1e-8}})
+    assert cooled.fractions("Ar")[-1, 17:].sum() > hot.fractions("Ar")[-1, 17:].sum()
+    assert np.all(cooled.temperatures_ev("Ar")[-1, 16:] < 0.5 * hot.temperatures_ev("Ar")[-1, 16:])
 
 
 def test_a_deeper_barrier_holds_ions_longer():
