@@ -60,7 +60,7 @@ def main() -> None:
     times = np.linspace(1.0 / 300, 1.0, 300)
     print(f"machine: {platform.machine()}, {platform.processor() or '?'}, Python {platform.python_version()}")
 
-    reference = t.evolve(loads, times, rtol=1e-9)
+    reference = t.evolve(loads, times, rtol=1e-10)
     names = reference.species
     ref = np.concatenate([reference.ions(n) for n in names], axis=1)
     scale = ref.sum(axis=1).max()
