@@ -13,6 +13,9 @@
 //! 50 µm electron-beam trap with H2 and N2 residual gas (Lotz, Kim–Pratt, Müller–Salzborn),
 //! the case `benches/compare_scipy.py` runs against scipy.
 //!
+//! The `dynamics` group times the beam trap's ion-dynamics model (krypton with a nitrogen
+//! coolant).
+//!
 //! Run with `cargo bench --bench evolution`. For comparison, scipy's solve_ivp(BDF) needs
 //! ~0.5 s for 19 states and 1000 output times (measured while the project was planned;
 //! README's performance table has today's figures).
@@ -169,5 +172,30 @@ fn physical(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, one_element, sweep, physical);
+/// The ion-dynamics model: krypton (37 charge states) with a nitrogen coolant fed in
+/// (8 charge states), populations and temperatures, every dynamic process on, 0 … 1 s at
+/// 300 output times; the case `benches/dynamics_scipy.py` runs against scipy.
+fn dynamics(c: &mut Criterion) {
+    let beam = ElectronBeam::with_current_density(20_000.0, 0.5, 1000.0).expect("beam");
+    let trap = BeamTrap::builder(beam, 0.6)
+        .residual_gas_pa(vec![("H2".into(), 1e-9)])
+        .model("dynamic")
+        .axial_barrier_v(300.0)
+        .gas_feed_pa(vec![("N2".into(), 1e-7)])
+        .build()
+        .expect("trap");
+    let times: Vec<f64> = (1..=300).map(|k| k as f64 / 300.0).collect();
+    let loads = vec![("Kr".to_string(), 1e8)];
+    let mut group = c.benchmark_group("dynamics_kr_with_n_coolant_300_times");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(100))
+        .measurement_time(Duration::from_secs(5));
+    group.bench_function("evolve", |b| {
+        b.iter(|| trap.evolve_dynamic(black_box(&loads), black_box(&times)))
+    });
+    group.finish();
+}
+
+criterion_group!(benches, one_element, sweep, physical, dynamics);
 criterion_main!(benches);

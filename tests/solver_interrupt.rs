@@ -104,3 +104,44 @@ fn requests_beyond_the_memory_limit_are_refused_with_estimate_and_limit() {
     assert!(matches!(batch[0], Err(Error::MemoryLimit { .. })));
     assert!(evolve(&net, &start, &times).is_ok());
 }
+
+/// An argon trap running the ion-dynamics model.
+fn dynamic_trap() -> chargecast::sources::beam_trap::BeamTrap {
+    use chargecast::sources::beam_trap::BeamTrap;
+    use chargecast::sources::electron_beam::ElectronBeam;
+    let beam = ElectronBeam::with_current_density(6_000.0, 0.2, 400.0).unwrap();
+    BeamTrap::builder(beam, 0.6)
+        .residual_gas_pa(vec![("H2".into(), 1e-8)])
+        .model("dynamic")
+        .build()
+        .unwrap()
+}
+
+#[test]
+fn a_poll_hook_stops_the_stiff_solve_between_steps() {
+    let _serial = SERIAL.lock().unwrap_or_else(|e| e.into_inner());
+    interrupt::reset();
+    let trap = dynamic_trap();
+    let loads = vec![("Ar".to_string(), 1e7)];
+    let mut calls = 0;
+    let out = interrupt::with_poll_hook(
+        move || {
+            calls += 1;
+            calls > 5
+        },
+        || trap.evolve_dynamic(&loads, &[1.0]),
+    );
+    assert_eq!(out.unwrap_err(), Error::Interrupted);
+    interrupt::reset();
+}
+
+#[test]
+fn the_memory_limit_bounds_a_dynamic_run() {
+    let _serial = SERIAL.lock().unwrap_or_else(|e| e.into_inner());
+    let default = limits::memory_limit_bytes();
+    limits::set_memory_limit_bytes(1 << 20).unwrap();
+    let times: Vec<f64> = (1..=20_000).map(|k| k as f64 * 1e-6).collect();
+    let out = dynamic_trap().evolve_dynamic(&[("Ar".to_string(), 1e7)], &times);
+    limits::set_memory_limit_bytes(default).unwrap();
+    assert!(matches!(out, Err(Error::MemoryLimit { .. })), "{out:?}");
+}

@@ -50,6 +50,7 @@ from chargecast.electron_beam import (
 )
 from chargecast.evolution import Evolution
 from chargecast.rate_equations import solve_rate_equations, steady_state_rate_equations
+from chargecast.trap_dynamics import DynamicRun
 
 # --- photon beams and the single-collision electron-impact source
 # isort: split
@@ -145,6 +146,7 @@ __all__ = [
     "ElectronBeam",
     "EnergyScan",
     "Evolution",
+    "DynamicRun",
     "brillouin_radius_m",
     "effective_energy_ev",
     "evolve_batch",

@@ -17,7 +17,7 @@ use super::{element_arg, guard, matrix_to_py, to_py};
 use crate::atoms::Element;
 use crate::error::{Error, Result};
 use crate::sources::beam_trap::{
-    BeamTrap, Processes, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K,
+    BeamTrap, Processes, TrapModel, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K,
     DEFAULT_ION_TEMPERATURE_EV,
 };
 
@@ -55,7 +55,23 @@ use crate::sources::beam_trap::{
 ///     once per ion and cached).
 /// photon_beam : PhotonBeam, optional
 ///     A photon beam crossing the trapped ions: its photoionization and relaxation jumps
-///     are added to the network (e.g. a synchrotron beam through the trap).
+///     are added to the network (e.g. a synchrotron beam through the trap); fixed model only.
+/// model : {"fixed", "dynamic"}, optional
+///     ``"fixed"`` (default): the ions of one element sit inside the beam at
+///     ``ion_temperature_ev`` (linear and fast). ``"dynamic"``: several species with their
+///     own temperatures, beam heating, energy exchange, escape over the barriers, overlap
+///     with the beam, gas feeds and the space-charge limit; ``evolve`` then returns a
+///     ``DynamicRun``.
+/// axial_barrier_v : float, optional
+///     Axial barrier (V) at the trap's ends, dynamic model; 100 V by default.
+/// drift_tube_radius_m : float, optional
+///     Drift-tube radius (m), larger than the beam radius, dynamic model; 5 mm by default.
+/// gas_feed_pa : dict of str to float, optional
+///     Neutral gases injected continuously, partial pressure (Pa) by formula, e.g.
+///     ``{"N2": 1e-7}`` for a light coolant; dynamic model. Their elements join the run.
+/// dynamic_processes : sequence of str, optional
+///     Subset of ``("overlap", "heating", "exchange", "escape", "ionization_heating",
+///     "space_charge")``; all but ``"ionization_heating"`` by default; dynamic model.
 ///
 /// Examples
 /// --------
@@ -124,14 +140,49 @@ fn feed_arg(value: Option<&Bound<'_, PyAny>>) -> PyResult<Option<(u32, f64)>> {
     Ok(Some((q, rate)))
 }
 
+/// The element of a fixed-model run: a symbol, name or Z, or a dict naming one element
+/// (its amount is irrelevant to a linear model).
+fn fixed_element_arg(value: &Bound<'_, PyAny>) -> PyResult<&'static Element> {
+    let Ok(d) = value.cast::<PyDict>() else {
+        return Ok(element_arg(value)?);
+    };
+    if d.len() != 1 {
+        return Err(Error::invalid(
+            "species",
+            format!("{} species", d.len()),
+            "the fixed model runs one element: give one, or build the trap with model=\"dynamic\" for several",
+        )
+        .into());
+    }
+    let (key, _) = d
+        .iter()
+        .next()
+        .ok_or_else(|| Error::invalid("species", "none", "give one element"))?;
+    Ok(element_arg(&key)?)
+}
+
 impl PyBeamTrap {
     fn label(&self) -> String {
         let b = &self.inner.beam;
         format!(
-            "{} eV, {} A/cm²",
+            "{} eV, {} A/cm², {} model",
             fmt_g(b.energy_ev, 6),
-            fmt_g(b.current_density_a_cm2, 3)
+            fmt_g(b.current_density_a_cm2, 3),
+            self.inner.model.name()
         )
+    }
+
+    /// An error for methods that use the fixed network only.
+    fn require_fixed(&self, what: &str) -> PyResult<()> {
+        if self.inner.model.dynamics().is_some() {
+            return Err(Error::invalid(
+                "model",
+                "\"dynamic\"",
+                &format!("{what} scans the fixed model's network: build the trap with model=\"fixed\" for it"),
+            )
+            .into());
+        }
+        Ok(())
     }
 
     /// The Evolution result of this trap for `element`.
@@ -151,7 +202,9 @@ impl PyBeamTrap {
     #[new]
     #[pyo3(signature = (beam, length_m, *, residual_gas_pa=None, ion_temperature_ev=DEFAULT_ION_TEMPERATURE_EV,
                         gas_temperature_k=DEFAULT_GAS_TEMPERATURE_K, compensation=DEFAULT_COMPENSATION,
-                        loss_per_s=None, feed=None, processes=None, photon_beam=None))]
+                        loss_per_s=None, feed=None, processes=None, photon_beam=None,
+                        model=None, axial_barrier_v=None, drift_tube_radius_m=None, gas_feed_pa=None,
+                        dynamic_processes=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: &Bound<'_, PyAny>,
@@ -164,6 +217,11 @@ impl PyBeamTrap {
         feed: Option<&Bound<'_, PyAny>>,
         processes: Option<&Bound<'_, PyAny>>,
         photon_beam: Option<&Bound<'_, PyAny>>,
+        model: Option<&Bound<'_, PyAny>>,
+        axial_barrier_v: Option<&Bound<'_, PyAny>>,
+        drift_tube_radius_m: Option<&Bound<'_, PyAny>>,
+        gas_feed_pa: Option<&Bound<'_, PyAny>>,
+        dynamic_processes: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
         let beam = beam.cast::<PyElectronBeam>().map_err(|_| {
             Error::invalid("beam", type_name(beam), "must be a chargecast.ElectronBeam")
@@ -194,6 +252,32 @@ impl PyBeamTrap {
                 )
             })?;
             builder = builder.photon_beam(photons.get().inner);
+        }
+        if let Some(m) = model.filter(|v| !v.is_none()) {
+            let name: String = m.extract().map_err(|_| {
+                Error::invalid(
+                    "model",
+                    type_name(m),
+                    &format!("must be one of \"{}\"", TrapModel::NAMES.join("\", \"")),
+                )
+            })?;
+            builder = builder.model(&name);
+        }
+        if let Some(v) = axial_barrier_v.filter(|v| !v.is_none()) {
+            builder = builder.axial_barrier_v(float_arg("axial_barrier_v", v)?);
+        }
+        if let Some(v) = drift_tube_radius_m.filter(|v| !v.is_none()) {
+            builder = builder.drift_tube_radius_m(float_arg("drift_tube_radius_m", v)?);
+        }
+        if let Some(v) = gas_feed_pa.filter(|v| !v.is_none()) {
+            builder = builder.gas_feed_pa(super::convert::float_dict_arg(
+                "gas_feed_pa",
+                Some(v),
+                "must be a dict {formula: pressure_pa}",
+            )?);
+        }
+        if let Some(sw) = super::trap_dynamics::dynamic_processes_arg(dynamic_processes)? {
+            builder = builder.dynamic_processes(sw);
         }
         Ok(PyBeamTrap {
             inner: builder.build()?,
@@ -267,31 +351,107 @@ impl PyBeamTrap {
     fn electrons_in_trap(&self) -> f64 {
         self.inner.electrons_in_trap()
     }
+    /// The ion model: ``"fixed"`` or ``"dynamic"``.
+    #[getter]
+    fn model(&self) -> &'static str {
+        self.inner.model.name()
+    }
+    /// Axial barrier (V) of the dynamic model, or None.
+    #[getter]
+    fn axial_barrier_v(&self) -> Option<f64> {
+        self.inner.model.dynamics().map(|d| d.axial_barrier_v)
+    }
+    /// Drift-tube radius (m) of the dynamic model, or None.
+    #[getter]
+    fn drift_tube_radius_m(&self) -> Option<f64> {
+        self.inner.model.dynamics().map(|d| d.drift_tube_radius_m)
+    }
+    /// Gases fed continuously, partial pressure (Pa) by formula (dynamic model), or None.
+    #[getter]
+    fn gas_feed_pa<'py>(&self, py: Python<'py>) -> PyResult<Option<Bound<'py, PyDict>>> {
+        let Some(d) = self.inner.model.dynamics() else {
+            return Ok(None);
+        };
+        let out = PyDict::new(py);
+        for g in &d.gas_feed {
+            out.set_item(g.gas.formula, g.pressure_pa)?;
+        }
+        Ok(Some(out))
+    }
+    /// Names of the dynamic processes that are on (dynamic model), or None.
+    #[getter]
+    fn dynamic_processes(&self) -> Option<Vec<&'static str>> {
+        self.inner.model.dynamics().map(|d| d.switches.names())
+    }
 
-    /// Charge-state fractions over confinement time, starting from one charge state.
+    /// Charge-state evolution over confinement time.
     ///
     /// Parameters
     /// ----------
-    /// element : str or int
-    ///     Symbol, name or Z.
+    /// element : str, int or dict of str to float
+    ///     Fixed model: symbol, name or Z (or a dict with one element; the amount does not
+    ///     matter, the model is linear). Dynamic model: a dict {species: atoms injected at
+    ///     t = 0} (elements or isotopes such as ``"84Kr"``), or one name, which loads a trace
+    ///     of 1e-3 × ``electrons_in_trap`` atoms.
     /// times_s : array_like
     ///     Output times (s), ascending, ≥ 0.
     /// initial_charge : int
-    ///     Charge state of the injected atoms or ions (0 = neutral atoms).
+    ///     Charge state of the injected atoms or ions (0 = neutral atoms); fixed model only
+    ///     (the dynamic model injects neutral atoms).
+    /// rtol : float, optional
+    ///     Relative tolerance of the dynamic model's stiff solve, 1e-14 … 1e-2 (1e-8 by
+    ///     default); dynamic model only.
     ///
     /// Returns
     /// -------
-    /// Evolution
-    ///     ``times_s``, ``charges``, ``fractions`` [T, Z+1], ``peak()``, ``plot()`` …
-    #[pyo3(signature = (element, times_s, initial_charge=None))]
+    /// Evolution or DynamicRun
+    ///     Fixed model: ``Evolution`` (``times_s``, ``charges``, ``fractions`` [T, Z+1],
+    ///     ``peak()``, ``plot()`` …). Dynamic model: ``DynamicRun`` (``fractions(species)``,
+    ///     ``ions``, ``temperatures_ev``, ``escape_per_s``, ``overlap`` [T, Z+1],
+    ///     ``compensation``, ``well_depth_v`` [T], bookkeeping).
+    #[pyo3(signature = (element, times_s, initial_charge=None, *, rtol=None))]
     fn evolve<'py>(
         &self,
         py: Python<'py>,
         element: &Bound<'py, PyAny>,
         times_s: &Bound<'py, PyAny>,
         initial_charge: Option<&Bound<'py, PyAny>>,
+        rtol: Option<&Bound<'py, PyAny>>,
     ) -> PyResult<Bound<'py, PyAny>> {
-        let el = element_arg(element)?;
+        let rtol = rtol
+            .filter(|v| !v.is_none())
+            .map(|v| float_arg("rtol", v))
+            .transpose()?;
+        if let Some(d) = self.inner.model.dynamics() {
+            if let Some(q) = initial_charge.filter(|v| !v.is_none()) {
+                if int_arg("initial_charge", q)? != 0 {
+                    return Err(Error::invalid(
+                        "initial_charge",
+                        int_arg("initial_charge", q)?,
+                        "the dynamic model injects neutral atoms: leave initial_charge out",
+                    )
+                    .into());
+                }
+            }
+            let loads = super::trap_dynamics::loads_arg(&self.inner, element)?;
+            let times = times_arg(times_s)?;
+            let mut d = d.clone();
+            if let Some(r) = rtol {
+                d.rtol = crate::sources::trap_dynamics::require_rtol(r)?;
+            }
+            let core = self.inner.clone();
+            let run = guard(py, || d.evolve(&core, &loads, &times))?;
+            return super::trap_dynamics::PyDynamicRun::result(py, run);
+        }
+        if rtol.is_some() {
+            return Err(Error::invalid(
+                "rtol",
+                "set",
+                "sets the dynamic model's solver: the fixed model is solved exactly",
+            )
+            .into());
+        }
+        let el = fixed_element_arg(element)?;
         let times = times_arg(times_s)?;
         let q = match initial_charge {
             Some(q) => int_arg("initial_charge", q)?,
@@ -302,24 +462,33 @@ impl PyBeamTrap {
         self.evolution(py, el, times, out)
     }
 
-    /// Equilibrium charge-state fractions (long-time limit).
+    /// Equilibrium (long-time limit).
     ///
     /// Parameters
     /// ----------
-    /// element : str or int
-    ///     Symbol, name or Z.
+    /// element : str, int or dict of str to float
+    ///     As for ``evolve``.
     ///
     /// Returns
     /// -------
-    /// ndarray, shape (Z+1,)
-    ///     Fraction of each charge state.
+    /// ndarray, shape (Z+1,) or DynamicRun
+    ///     Fixed model: the fraction of each charge state. Dynamic model: a ``DynamicRun``
+    ///     with one row at ``times_s = [inf]``, found by Newton's method on the steady-state
+    ///     equations started from the evolving state (``steady_method`` says whether Newton
+    ///     or the long solve gave it); its bookkeeping holds rates (per second).
     fn steady_state<'py>(
         &self,
         py: Python<'py>,
         element: &Bound<'py, PyAny>,
-    ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let el = element_arg(element)?;
-        Ok(to_py(py, guard(py, || self.inner.steady_state(el))?))
+    ) -> PyResult<Bound<'py, PyAny>> {
+        if self.inner.model.dynamics().is_some() {
+            let loads = super::trap_dynamics::loads_arg(&self.inner, element)?;
+            let core = self.inner.clone();
+            let run = guard(py, || core.steady_state_dynamic(&loads))?;
+            return super::trap_dynamics::PyDynamicRun::result(py, run);
+        }
+        let el = fixed_element_arg(element)?;
+        Ok(to_py(py, guard(py, || self.inner.steady_state(el))?).into_any())
     }
 
     /// The element's rate matrix ``rates[from, to]`` (s⁻¹) in this trap.
@@ -392,6 +561,7 @@ impl PyBeamTrap {
         energies_ev: &Bound<'py, PyAny>,
         times_s: &Bound<'py, PyAny>,
     ) -> PyResult<Bound<'py, PyAny>> {
+        self.require_fixed("best_energy")?;
         let el = element_arg(element)?;
         let charges = charges_arg(el, &charge_list_arg(charge)?)?;
         let e = array1_arg("energies_ev", energies_ev)?;
@@ -425,6 +595,7 @@ impl PyBeamTrap {
         energies_ev: &Bound<'py, PyAny>,
         times_s: &Bound<'py, PyAny>,
     ) -> PyResult<Bound<'py, PyDict>> {
+        self.require_fixed("sweep")?;
         let els: Vec<&'static Element> = if elements.is_instance_of::<pyo3::types::PyString>()
             || elements.is_instance_of::<pyo3::types::PyInt>()
         {
@@ -497,8 +668,15 @@ impl PyBeamTrap {
             }
             .repr(),
             fmt_g(self.inner.length_m, 6),
-            gas.join(", ")
-        )
+            gas.join(", "),
+        ) + &match self.inner.model.dynamics() {
+            None => String::new(),
+            Some(d) => format!(
+                " [model=dynamic, axial_barrier_v={}, drift_tube_radius_m={}]",
+                fmt_g(d.axial_barrier_v, 6),
+                fmt_g(d.drift_tube_radius_m, 6)
+            ),
+        }
     }
 }
 

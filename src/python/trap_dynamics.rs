@@ -4,94 +4,75 @@
 
 use numpy::{PyArray1, PyArray2};
 use pyo3::prelude::*;
-use pyo3::types::PyDict;
 
 use super::beam_trap::PyBeamTrap;
-use super::convert::{float_dict_arg, times_arg};
-use super::{guard, matrix_to_py, to_py};
+use super::convert::float_dict_arg;
+use super::{matrix_to_py, to_py};
 use crate::error::Error;
 use crate::solve::stiff::StiffSystem;
-use crate::sources::trap_dynamics::{
-    DynamicRun, DynamicsSwitches, TrapDynamics, DEFAULT_AXIAL_BARRIER_V,
-    DEFAULT_DRIFT_TUBE_RADIUS_M, DEFAULT_RTOL,
-};
+use crate::sources::beam_trap::BeamTrap;
+use crate::sources::trap_dynamics::{default_load, DynamicRun, DynamicsSwitches, DEFAULT_RTOL};
 
-fn switches(processes: Option<&Bound<'_, PyAny>>) -> PyResult<DynamicsSwitches> {
-    let mut sw = DynamicsSwitches::default();
-    let Some(p) = processes else {
-        return Ok(sw);
+/// The dynamic processes named by `value` (a sequence of names from
+/// `DynamicsSwitches::NAMES`), or None for the defaults.
+pub(crate) fn dynamic_processes_arg(
+    value: Option<&Bound<'_, PyAny>>,
+) -> PyResult<Option<DynamicsSwitches>> {
+    let Some(value) = value.filter(|v| !v.is_none()) else {
+        return Ok(None);
     };
-    let d = p.cast::<PyDict>().map_err(|_| {
+    let wrong = || {
         Error::invalid(
-            "dynamics",
-            super::convert::type_name(p),
-            "must be a dict such as {\"heating\": False}",
+            "dynamic_processes",
+            super::convert::type_name(value),
+            &format!(
+                "must be a sequence of names from \"{}\"",
+                DynamicsSwitches::NAMES.join("\", \"")
+            ),
         )
-    })?;
-    for (k, v) in d.iter() {
-        let key: String = k.extract()?;
-        let on: bool = v.extract().map_err(|_| {
-            Error::invalid(
-                &format!("dynamics[{key:?}]"),
-                v.to_string(),
-                "must be True or False",
-            )
-        })?;
-        match key.as_str() {
-            "overlap" => sw.overlap = on,
-            "heating" => sw.heating = on,
-            "exchange" => sw.exchange = on,
-            "escape" => sw.escape = on,
-            "ionization_heating" => sw.ionization_heating = on,
-            "space_charge" => sw.space_charge = on,
-            other => {
-                return Err(Error::invalid(
-                    "dynamics",
-                    format!("{other:?}"),
-                    "keys are overlap, heating, exchange, escape, ionization_heating, space_charge",
-                )
-                .into())
-            }
-        }
+    };
+    if value.is_instance_of::<pyo3::types::PyString>() {
+        return Err(wrong().into());
     }
-    Ok(sw)
+    let names: Vec<String> = value.extract().map_err(|_| wrong())?;
+    Ok(Some(DynamicsSwitches::from_names(&names)?))
 }
 
-/// The settings of one dynamic run, validated by the core.
-#[allow(clippy::too_many_arguments)]
-fn dynamics(
-    trap: &PyBeamTrap,
-    axial_barrier_v: f64,
-    drift_tube_radius_m: f64,
-    gas_feed_pa: Option<&Bound<'_, PyAny>>,
-    processes: Option<&Bound<'_, PyAny>>,
-    rtol: f64,
-) -> PyResult<TrapDynamics> {
-    let mut d = TrapDynamics::new(
-        &trap.inner,
-        axial_barrier_v,
-        drift_tube_radius_m,
-        &float_dict_arg(
-            "gas_feed_pa",
-            gas_feed_pa,
-            "must be a dict {formula: pressure_pa}",
-        )?,
-    )?;
-    d.switches = switches(processes)?;
-    if !(rtol.is_finite() && (1e-14..=1e-2).contains(&rtol)) {
-        return Err(Error::invalid("rtol", rtol, "must lie in 1e-14 … 1e-2").into());
+/// Species loads of a dynamic run: a dict {species: atoms}, or one species name (which
+/// loads the default trace amount).
+pub(crate) fn loads_arg(
+    trap: &BeamTrap,
+    species: &Bound<'_, PyAny>,
+) -> PyResult<Vec<(String, f64)>> {
+    if let Ok(name) = species.extract::<String>() {
+        return Ok(vec![(name, default_load(trap))]);
     }
-    d.rtol = rtol;
-    Ok(d)
+    if species.is_instance_of::<pyo3::types::PyInt>() {
+        let el = super::element_arg(species)?;
+        return Ok(vec![(el.symbol().to_string(), default_load(trap))]);
+    }
+    float_dict_arg(
+        "species",
+        Some(species),
+        "must be a species name or a dict {species: atoms at t = 0}",
+    )
 }
 
-/// The result of a dynamic evolution in a beam trap.
-#[pyclass(name = "DynamicRun", module = "chargecast", frozen)]
+/// The result of the ion-dynamics model in a beam trap: particles, temperatures, escape
+/// fluxes and overlaps of every species and charge over time; compensation and well depth;
+/// the particle and energy bookkeeping. Made by ``BeamTrap.evolve`` and
+/// ``BeamTrap.steady_state`` of a trap with ``model="dynamic"``.
+#[pyclass(name = "DynamicRun", module = "chargecast", frozen, subclass)]
 pub(crate) struct PyDynamicRun {
     inner: DynamicRun,
 }
 
 impl PyDynamicRun {
+    /// A DynamicRun object (the Python package's class when it is loaded).
+    pub(crate) fn result(py: Python<'_>, inner: DynamicRun) -> PyResult<Bound<'_, PyAny>> {
+        super::results::into_result(py, "DynamicRun", PyDynamicRun { inner })
+    }
+
     fn history(&self, species: &str) -> PyResult<&crate::sources::trap_dynamics::SpeciesHistory> {
         self.inner.species(species).ok_or_else(|| {
             let names: Vec<&str> = self
@@ -112,6 +93,62 @@ impl PyDynamicRun {
 
 #[pymethods]
 impl PyDynamicRun {
+    #[new]
+    fn new() -> PyResult<Self> {
+        super::results::staged("DynamicRun", "BeamTrap.evolve with model=\"dynamic\"")
+    }
+    /// The model that made the run: ``"dynamic"``.
+    #[getter]
+    fn model(&self) -> &'static str {
+        self.inner.model()
+    }
+    /// For a steady state, how it was found (``"newton"`` or ``"long solve"``); None for an
+    /// evolution.
+    #[getter]
+    fn steady_method(&self) -> Option<&'static str> {
+        self.inner.steady_method.map(|m| m.name())
+    }
+    /// Electrons in the trap, N_e = I·L/(e·v).
+    #[getter]
+    fn electrons_in_trap(&self) -> f64 {
+        self.inner.electrons_in_trap
+    }
+    /// Atoms injected at t = 0 (all species).
+    #[getter]
+    fn initial_particles(&self) -> f64 {
+        self.inner.bookkeeping.initial_particles
+    }
+    /// Ions made from the fed gases since t = 0 [T] (a steady state: per second).
+    #[getter]
+    fn fed<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.fed.to_vec())
+    }
+    /// Particles escaped since t = 0 [T] (a steady state: per second).
+    #[getter]
+    fn escaped<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.escaped.to_vec())
+    }
+    /// Particles in the trap [T].
+    #[getter]
+    fn trapped<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.trapped.to_vec())
+    }
+    /// Thermal energy (eV) brought in by beam heating, ionization heating and the feed [T]
+    /// (a steady state: eV/s).
+    #[getter]
+    fn energy_in_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.energy_in_ev.to_vec())
+    }
+    /// Thermal energy (eV) carried out by escaping particles [T] (a steady state: eV/s).
+    #[getter]
+    fn energy_out_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.energy_out_ev.to_vec())
+    }
+    /// Thermal energy (eV) of the trapped particles [T].
+    #[getter]
+    fn thermal_energy_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.inner.bookkeeping.thermal_energy_ev.to_vec())
+    }
     /// Output times (s).
     #[getter]
     fn times_s<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
@@ -182,7 +219,7 @@ impl PyDynamicRun {
     }
     fn __repr__(&self) -> String {
         format!(
-            "DynamicRun({} species, {} times, {} … {} s)",
+            "DynamicRun(model=dynamic, {} species, {} times, {} … {} s)",
             self.inner.species.len(),
             self.inner.times_s.len(),
             self.inner.times_s.first().copied().unwrap_or(f64::NAN),
@@ -191,83 +228,26 @@ impl PyDynamicRun {
     }
 }
 
-/// Evolve species in a beam trap with the ion-dynamics model.
+/// The dynamic model's right-hand side, Jacobian and initial state for `species` in
+/// `trap` (model "dynamic"), for external checks (scipy).
 ///
 /// Parameters
 /// ----------
 /// trap : BeamTrap
-/// species : dict of str to float
-///     Atoms injected into the beam at t = 0 per species (element or isotope).
-/// times_s : array_like
-///     Output times (s), ascending.
-/// axial_barrier_v : float, optional
-///     Axial barrier (V).
-/// drift_tube_radius_m : float, optional
-///     Drift-tube radius (m), larger than the beam radius.
-/// gas_feed_pa : dict of str to float, optional
-///     Neutral gases fed continuously, partial pressure (Pa) by formula.
-/// dynamics : dict of str to bool, optional
-///     Switch processes: overlap, heating, exchange, escape, ionization_heating, space_charge.
-/// rtol : float, optional
-///     Relative tolerance of the stiff solve.
+///     A trap with ``model="dynamic"``.
+/// species : str or dict of str to float
+///     As for ``BeamTrap.evolve``.
 ///
 /// Returns
 /// -------
-/// DynamicRun
+/// DynamicSystem
 #[pyfunction]
-#[pyo3(signature = (trap, species, times_s, *, axial_barrier_v=DEFAULT_AXIAL_BARRIER_V,
-                    drift_tube_radius_m=DEFAULT_DRIFT_TUBE_RADIUS_M, gas_feed_pa=None, dynamics=None,
-                    rtol=DEFAULT_RTOL))]
-#[allow(clippy::too_many_arguments)]
-fn _evolve_dynamic(
-    py: Python<'_>,
-    trap: PyRef<'_, PyBeamTrap>,
-    species: &Bound<'_, PyAny>,
-    times_s: &Bound<'_, PyAny>,
-    axial_barrier_v: f64,
-    drift_tube_radius_m: f64,
-    gas_feed_pa: Option<&Bound<'_, PyAny>>,
-    dynamics: Option<&Bound<'_, PyAny>>,
-    rtol: f64,
-) -> PyResult<PyDynamicRun> {
-    let d = self::dynamics(
-        &trap,
-        axial_barrier_v,
-        drift_tube_radius_m,
-        gas_feed_pa,
-        dynamics,
-        rtol,
-    )?;
-    let loads = float_dict_arg("species", Some(species), "must be a dict {species: atoms}")?;
-    let times = times_arg(times_s)?;
-    let core = trap.inner.clone();
-    let inner = guard(py, || d.evolve(&core, &loads, &times))?;
-    Ok(PyDynamicRun { inner })
-}
-
-/// The model's right-hand side and initial state, for external checks: returns
-/// ``(y0, rhs)`` where ``rhs(y)`` is dy/dt of the state vector (same keywords as
-/// ``_evolve_dynamic``).
-#[pyfunction]
-#[pyo3(signature = (trap, species, *, axial_barrier_v=DEFAULT_AXIAL_BARRIER_V,
-                    drift_tube_radius_m=DEFAULT_DRIFT_TUBE_RADIUS_M, gas_feed_pa=None, dynamics=None))]
 fn _dynamic_system(
     trap: PyRef<'_, PyBeamTrap>,
     species: &Bound<'_, PyAny>,
-    axial_barrier_v: f64,
-    drift_tube_radius_m: f64,
-    gas_feed_pa: Option<&Bound<'_, PyAny>>,
-    dynamics: Option<&Bound<'_, PyAny>>,
 ) -> PyResult<PyDynamicSystem> {
-    let d = self::dynamics(
-        &trap,
-        axial_barrier_v,
-        drift_tube_radius_m,
-        gas_feed_pa,
-        dynamics,
-        DEFAULT_RTOL,
-    )?;
-    let loads = float_dict_arg("species", Some(species), "must be a dict {species: atoms}")?;
+    let d = trap.inner.require_dynamic()?;
+    let loads = loads_arg(&trap.inner, species)?;
     let system = d.system(&trap.inner, &loads)?;
     Ok(PyDynamicSystem { system })
 }
@@ -276,6 +256,21 @@ fn _dynamic_system(
 #[pyclass(name = "DynamicSystem", module = "chargecast", frozen)]
 pub(crate) struct PyDynamicSystem {
     system: crate::sources::trap_dynamics::TrapSystem,
+}
+
+impl PyDynamicSystem {
+    fn state(&self, y: &Bound<'_, PyAny>) -> PyResult<Vec<f64>> {
+        let y = super::convert::array1_arg("y", y)?;
+        if y.len() != self.system.dim() {
+            return Err(Error::invalid(
+                "y",
+                format!("{} values", y.len()),
+                &format!("give the full state ({} values)", self.system.dim()),
+            )
+            .into());
+        }
+        Ok(y)
+    }
 }
 
 #[pymethods]
@@ -295,18 +290,23 @@ impl PyDynamicSystem {
         py: Python<'py>,
         y: &Bound<'py, PyAny>,
     ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-        let y = super::convert::array1_arg("y", y)?;
-        if y.len() != self.system.dim() {
-            return Err(Error::invalid(
-                "y",
-                format!("{} values", y.len()),
-                &format!("give the full state ({} values)", self.system.dim()),
-            )
-            .into());
-        }
+        let y = self.state(y)?;
         let mut f = vec![0.0; y.len()];
         self.system.rhs(&y, &mut f);
         Ok(to_py(py, f))
+    }
+    /// The Jacobian ∂f/∂y [n, n] at state ``y`` that the core's solver uses.
+    fn jacobian<'py>(
+        &self,
+        py: Python<'py>,
+        y: &Bound<'py, PyAny>,
+    ) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let y = self.state(y)?;
+        let n = y.len();
+        let scale = self.system.tolerances(DEFAULT_RTOL).atol;
+        let mut jac = ndarray::Array2::zeros((n, n));
+        self.system.jacobian(&y, &scale, &mut jac);
+        Ok(matrix_to_py(py, jac))
     }
     /// Populations of one species (its N entries) in a state vector.
     fn populations<'py>(
@@ -335,7 +335,6 @@ impl PyDynamicSystem {
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyDynamicRun>()?;
     m.add_class::<PyDynamicSystem>()?;
-    m.add_function(wrap_pyfunction!(_evolve_dynamic, m)?)?;
     m.add_function(wrap_pyfunction!(_dynamic_system, m)?)?;
     Ok(())
 }

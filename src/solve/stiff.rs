@@ -14,7 +14,7 @@
 
 use std::cell::RefCell;
 
-use diffsol::{DenseMatrix, MatrixCommon, NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod};
+use diffsol::{NalgebraLU, NalgebraMat, OdeBuilder, OdeSolverMethod};
 use ndarray::Array2;
 
 use crate::error::{require_sorted_times, Error, Result};
@@ -58,6 +58,28 @@ pub fn forward_difference_jacobian<S: StiffSystem + ?Sized>(
     }
 }
 
+/// Most steps one solve may take.
+const MAX_STEPS: usize = 1_000_000;
+
+/// Work counters of the last stiff solve on this thread (for benchmarks and tuning).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct StiffStatistics {
+    pub steps: usize,
+    /// Jacobian evaluations with LU factorisations.
+    pub jacobians: usize,
+    pub newton_iterations: usize,
+}
+
+thread_local! {
+    static STATISTICS: std::cell::Cell<StiffStatistics> =
+        const { std::cell::Cell::new(StiffStatistics { steps: 0, jacobians: 0, newton_iterations: 0 }) };
+}
+
+/// The work counters of the last stiff solve on this thread.
+pub fn last_statistics() -> StiffStatistics {
+    STATISTICS.with(|s| s.get())
+}
+
 /// Tolerances of a stiff solve.
 #[derive(Clone, Debug)]
 pub struct StiffTolerances {
@@ -84,7 +106,11 @@ pub fn integrate_stiff<S: StiffSystem>(
         ));
     }
     require_sorted_times("times_s", times_s)?;
-    let mut out = Array2::zeros((times_s.len(), n));
+    crate::limits::check_memory(
+        "the nonlinear solve's output",
+        crate::limits::bytes_for(&[times_s.len(), n], 8),
+    )?;
+    let mut out = crate::limits::try_zeros("the nonlinear solve's output", times_s.len(), n)?;
     let first = times_s.iter().take_while(|t| **t == 0.0).count();
     for k in 0..first {
         out.row_mut(k).assign(&ndarray::ArrayView1::from(initial));
@@ -98,7 +124,7 @@ pub fn integrate_stiff<S: StiffSystem>(
         RefCell::new((vec![f64::NAN; n], Array2::zeros((n, n))));
     let scale = tolerances.atol.clone();
     let y0 = initial.to_vec();
-    let problem = OdeBuilder::<NalgebraMat<f64>>::new()
+    let mut problem = OdeBuilder::<NalgebraMat<f64>>::new()
         .rtol(tolerances.rtol)
         .atol(tolerances.atol.clone())
         .rhs_implicit(
@@ -122,14 +148,40 @@ pub fn integrate_stiff<S: StiffSystem>(
         )
         .build()
         .map_err(solver_error)?;
+    // diffsol stops after 5000 steps by default; tight tolerances over long times need
+    // more, and the interrupt check below lets a caller stop a long solve instead.
+    problem.ode_options.max_number_timesteps = MAX_STEPS;
     let mut solver = problem.bdf::<NalgebraLU<f64>>().map_err(solver_error)?;
-    let (sol, _) = solver.solve_dense(later).map_err(solver_error)?;
-    for (k, _) in later.iter().enumerate() {
-        for i in 0..n {
-            out[[first + k, i]] = sol.get_index(i, k);
+    // Step by step (not diffsol's one-call dense solve) so that a stop request is seen
+    // between steps: each step costs at most a few Jacobians, well under the 0.5 s the
+    // interrupt promises for the systems the model builds.
+    let final_time = later[later.len() - 1];
+    solver.set_stop_time(final_time).map_err(solver_error)?;
+    let mut col = 0;
+    while col < later.len() {
+        crate::interrupt::check()?;
+        let reason = solver.step().map_err(solver_error)?;
+        let t_now = solver.state().t;
+        while col < later.len() && later[col] <= t_now {
+            let y = solver.interpolate(later[col]).map_err(solver_error)?;
+            for i in 0..n {
+                out[[first + col, i]] = y[i];
+            }
+            col += 1;
+        }
+        if matches!(reason, diffsol::OdeSolverStopReason::TstopReached) && col < later.len() {
+            break;
         }
     }
-    if out.iter().any(|v| !v.is_finite()) || sol.ncols() != later.len() {
+    let stats = solver.get_statistics();
+    STATISTICS.with(|s| {
+        s.set(StiffStatistics {
+            steps: stats.number_of_steps,
+            jacobians: stats.number_of_linear_solver_setups,
+            newton_iterations: stats.number_of_nonlinear_solver_iterations,
+        })
+    });
+    if out.iter().any(|v| !v.is_finite()) || col != later.len() {
         return Err(Error::invalid(
             "times_s",
             format!("… {}", later[later.len() - 1]),

@@ -56,6 +56,8 @@ use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
 use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 
+use super::trap_dynamics::{DynamicRun, DynamicsSwitches, TrapDynamics};
+
 /// Ion temperature kT (eV) of a trap when none is given.
 pub const DEFAULT_ION_TEMPERATURE_EV: f64 = 50.0;
 /// Residual-gas temperature (K) of a trap when none is given (room temperature).
@@ -173,6 +175,39 @@ impl Processes {
     }
 }
 
+/// The ion model a trap runs: the linear fixed-temperature network (the default), or the
+/// nonlinear ion dynamics of several species with heating, exchange, escape, overlap and
+/// space charge ([`super::trap_dynamics`]).
+#[derive(Clone, Debug, Default)]
+pub enum TrapModel {
+    /// Ions of one element inside the beam at the trap's fixed ion temperature.
+    #[default]
+    Fixed,
+    /// The ion-dynamics model with its settings.
+    Dynamic(Box<TrapDynamics>),
+}
+
+impl TrapModel {
+    /// The models by name, the default first.
+    pub const NAMES: [&'static str; 2] = ["fixed", "dynamic"];
+
+    /// "fixed" or "dynamic".
+    pub fn name(&self) -> &'static str {
+        match self {
+            TrapModel::Fixed => "fixed",
+            TrapModel::Dynamic(_) => "dynamic",
+        }
+    }
+
+    /// The dynamic settings, if this is the dynamic model.
+    pub fn dynamics(&self) -> Option<&TrapDynamics> {
+        match self {
+            TrapModel::Fixed => None,
+            TrapModel::Dynamic(d) => Some(d),
+        }
+    }
+}
+
 /// An electron-beam trap: beam, trap length, residual gas, ion temperature.
 #[derive(Clone, Debug)]
 pub struct BeamTrap {
@@ -194,6 +229,8 @@ pub struct BeamTrap {
     /// A photon beam crossing the trapped ions (photoionization and relaxation jumps are
     /// added to the network), e.g. a synchrotron or free-electron-laser beam.
     pub photon_beam: Option<PhotonBeam>,
+    /// The ion model: fixed (default) or dynamic.
+    pub model: TrapModel,
 }
 
 impl BeamTrap {
@@ -228,6 +265,7 @@ impl BeamTrap {
             loss_per_s: Vec::new(),
             feed: None,
             photon_beam: None,
+            model: TrapModel::Fixed,
         })
     }
 
@@ -445,6 +483,28 @@ impl BeamTrap {
         evolve(&net, &initial, times_s)
     }
 
+    /// The dynamic model's evolution of `loads` (species → atoms injected at t = 0); an
+    /// error naming the model for a trap running the fixed model.
+    pub fn evolve_dynamic(&self, loads: &[(String, f64)], times_s: &[f64]) -> Result<DynamicRun> {
+        self.require_dynamic()?.evolve(self, loads, times_s)
+    }
+
+    /// The dynamic model's steady state (see [`TrapDynamics::steady_state`]).
+    pub fn steady_state_dynamic(&self, loads: &[(String, f64)]) -> Result<DynamicRun> {
+        self.require_dynamic()?.steady_state(self, loads)
+    }
+
+    /// The dynamic settings, or an error saying the trap runs the fixed model.
+    pub fn require_dynamic(&self) -> Result<&TrapDynamics> {
+        self.model.dynamics().ok_or_else(|| {
+            Error::invalid(
+                "model",
+                "\"fixed\"",
+                "this needs the ion-dynamics model: build the trap with model \"dynamic\"",
+            )
+        })
+    }
+
     /// Equilibrium charge-state populations.
     pub fn steady_state(&self, element: &'static Element) -> Result<Vec<f64>> {
         steady_state(&self.network(element)?)
@@ -509,6 +569,11 @@ pub struct BeamTrapBuilder {
     loss_per_s: Vec<f64>,
     feed: Option<(u32, f64)>,
     photon_beam: Option<PhotonBeam>,
+    model: String,
+    axial_barrier_v: Option<f64>,
+    drift_tube_radius_m: Option<f64>,
+    gas_feed_pa: Option<Vec<(String, f64)>>,
+    dynamic_processes: Option<DynamicsSwitches>,
 }
 
 impl BeamTrap {
@@ -525,6 +590,11 @@ impl BeamTrap {
             loss_per_s: Vec::new(),
             feed: None,
             photon_beam: None,
+            model: TrapModel::NAMES[0].to_string(),
+            axial_barrier_v: None,
+            drift_tube_radius_m: None,
+            gas_feed_pa: None,
+            dynamic_processes: None,
         }
     }
 }
@@ -570,6 +640,32 @@ impl BeamTrapBuilder {
         self.photon_beam = Some(beam);
         self
     }
+    /// The ion model by name, one of [`TrapModel::NAMES`] ("fixed" by default).
+    pub fn model(mut self, name: &str) -> Self {
+        self.model = name.to_string();
+        self
+    }
+    /// Axial barrier (V) of the dynamic model.
+    pub fn axial_barrier_v(mut self, value: f64) -> Self {
+        self.axial_barrier_v = Some(value);
+        self
+    }
+    /// Drift-tube radius (m) of the dynamic model.
+    pub fn drift_tube_radius_m(mut self, value: f64) -> Self {
+        self.drift_tube_radius_m = Some(value);
+        self
+    }
+    /// Neutral gases fed continuously (formula, partial pressure in Pa), dynamic model.
+    pub fn gas_feed_pa(mut self, gases: Vec<(String, f64)>) -> Self {
+        self.gas_feed_pa = Some(gases);
+        self
+    }
+    /// The dynamic processes that are on (dynamic model).
+    pub fn dynamic_processes(mut self, switches: DynamicsSwitches) -> Self {
+        self.dynamic_processes = Some(switches);
+        self
+    }
+
     /// The trap, with every setting validated.
     pub fn build(self) -> Result<BeamTrap> {
         let mut trap = BeamTrap::new(
@@ -585,6 +681,45 @@ impl BeamTrapBuilder {
         trap.feed = self.feed;
         trap.photon_beam = self.photon_beam;
         trap.check_settings()?;
+        trap.model = match self.model.as_str() {
+            "fixed" => {
+                let given = [
+                    ("axial_barrier_v", self.axial_barrier_v.is_some()),
+                    ("drift_tube_radius_m", self.drift_tube_radius_m.is_some()),
+                    ("gas_feed_pa", self.gas_feed_pa.is_some()),
+                    ("dynamic_processes", self.dynamic_processes.is_some()),
+                ];
+                if let Some((name, _)) = given.iter().find(|(_, set)| *set) {
+                    return Err(Error::invalid(
+                        name,
+                        "set",
+                        "belongs to the ion-dynamics model: add model=\"dynamic\" (the fixed model keeps the ions inside the beam at one temperature)",
+                    ));
+                }
+                TrapModel::Fixed
+            }
+            "dynamic" => {
+                let mut d = TrapDynamics::new(
+                    &trap,
+                    self.axial_barrier_v
+                        .unwrap_or(super::trap_dynamics::DEFAULT_AXIAL_BARRIER_V),
+                    self.drift_tube_radius_m
+                        .unwrap_or(super::trap_dynamics::DEFAULT_DRIFT_TUBE_RADIUS_M),
+                    &self.gas_feed_pa.unwrap_or_default(),
+                )?;
+                if let Some(sw) = self.dynamic_processes {
+                    d.switches = sw;
+                }
+                TrapModel::Dynamic(Box::new(d))
+            }
+            other => {
+                return Err(Error::invalid(
+                    "model",
+                    format!("{other:?}"),
+                    &format!("must be one of \"{}\"", TrapModel::NAMES.join("\", \"")),
+                ))
+            }
+        };
         Ok(trap)
     }
 }
@@ -694,9 +829,27 @@ mod tests {
             BeamTrap::builder(beam(), 0.5).loss_per_s(vec![1.0, -1.0]),
             BeamTrap::builder(beam(), 0.5).feed(1, f64::NAN),
             BeamTrap::builder(beam(), 0.0),
+            BeamTrap::builder(beam(), 0.5).model("hot"),
+            // Dynamic settings need the dynamic model.
+            BeamTrap::builder(beam(), 0.5).axial_barrier_v(100.0),
+            BeamTrap::builder(beam(), 0.5).gas_feed_pa(vec![("N2".into(), 1e-8)]),
+            BeamTrap::builder(beam(), 0.5)
+                .model("dynamic")
+                .drift_tube_radius_m(1e-6),
+            BeamTrap::builder(beam(), 0.5)
+                .model("dynamic")
+                .axial_barrier_v(-1.0),
         ] {
             assert!(matches!(bad.build(), Err(Error::InvalidParameter { .. })));
         }
+        assert_eq!(t.model.name(), "fixed");
+        let d = BeamTrap::builder(beam(), 0.5)
+            .model("dynamic")
+            .gas_feed_pa(vec![("N2".into(), 1e-8)])
+            .build()
+            .unwrap();
+        assert_eq!(d.model.name(), "dynamic");
+        assert!(t.evolve_dynamic(&[("Ar".into(), 1.0)], &[1e-3]).is_err());
     }
 
     #[test]

@@ -52,6 +52,7 @@
 
 mod rates;
 mod run;
+mod steady;
 mod system;
 
 pub(crate) use system::TrapSystem;
@@ -61,6 +62,7 @@ use crate::error::{require_positive, Error, Result};
 use crate::processes::gases::gas;
 use crate::solve::stiff::integrate_stiff;
 pub use run::{Bookkeeping, DynamicRun, SpeciesHistory};
+pub use steady::SteadyMethod;
 
 use super::beam_trap::{BeamTrap, GasComponent};
 use rates::SpeciesRates;
@@ -71,6 +73,24 @@ pub const DEFAULT_AXIAL_BARRIER_V: f64 = 100.0;
 pub const DEFAULT_DRIFT_TUBE_RADIUS_M: f64 = 5e-3;
 /// Default relative tolerance of the nonlinear solve.
 pub const DEFAULT_RTOL: f64 = 1e-8;
+
+/// The one rule for the solver's relative tolerance: 1e-14 … 1e-2.
+pub fn require_rtol(rtol: f64) -> Result<f64> {
+    if rtol.is_finite() && (1e-14..=1e-2).contains(&rtol) {
+        Ok(rtol)
+    } else {
+        Err(Error::invalid("rtol", rtol, "must lie in 1e-14 … 1e-2"))
+    }
+}
+
+/// Atoms loaded when a species is named without an amount: a trace, 1e-3 of the electrons
+/// in the trap, so that its ions barely change the space charge.
+pub const DEFAULT_LOAD_PER_ELECTRON: f64 = 1e-3;
+
+/// The trace load of [`DEFAULT_LOAD_PER_ELECTRON`] for `trap`.
+pub fn default_load(trap: &BeamTrap) -> f64 {
+    DEFAULT_LOAD_PER_ELECTRON * trap.electrons_in_trap()
+}
 
 /// Which dynamic processes are on (all but ionization heating by default).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -103,6 +123,55 @@ impl Default for DynamicsSwitches {
 }
 
 impl DynamicsSwitches {
+    /// Names of the dynamic processes, in the order of the fields.
+    pub const NAMES: [&'static str; 6] = [
+        "overlap",
+        "heating",
+        "exchange",
+        "escape",
+        "ionization_heating",
+        "space_charge",
+    ];
+
+    fn flags(&mut self) -> [&mut bool; 6] {
+        [
+            &mut self.overlap,
+            &mut self.heating,
+            &mut self.exchange,
+            &mut self.escape,
+            &mut self.ionization_heating,
+            &mut self.space_charge,
+        ]
+    }
+
+    /// The set named by `names` (each one of [`DynamicsSwitches::NAMES`]); the others off.
+    pub fn from_names<S: AsRef<str>>(names: &[S]) -> Result<Self> {
+        let mut sw = Self::none();
+        for name in names {
+            let Some(k) = Self::NAMES.iter().position(|n| *n == name.as_ref()) else {
+                return Err(Error::invalid(
+                    "dynamic_processes",
+                    format!("{:?}", name.as_ref()),
+                    &format!("each must be one of \"{}\"", Self::NAMES.join("\", \"")),
+                ));
+            };
+            *sw.flags()[k] = true;
+        }
+        Ok(sw)
+    }
+
+    /// The names of the processes that are on.
+    pub fn names(&self) -> Vec<&'static str> {
+        let mut copy = *self;
+        let on: Vec<bool> = copy.flags().iter().map(|f| **f).collect();
+        Self::NAMES
+            .iter()
+            .zip(on)
+            .filter(|(_, on)| *on)
+            .map(|(n, _)| *n)
+            .collect()
+    }
+
     /// Everything off: the fixed-temperature model, solved as a nonlinear system.
     pub fn none() -> Self {
         DynamicsSwitches {
@@ -139,6 +208,9 @@ impl TrapDynamics {
         drift_tube_radius_m: f64,
         gas_feed_pa: &[(String, f64)],
     ) -> Result<Self> {
+        if trap.photon_beam.is_some() {
+            return Err(photon_beam_error());
+        }
         crate::error::require_non_negative("axial_barrier_v", axial_barrier_v)?;
         require_positive("drift_tube_radius_m", drift_tube_radius_m)?;
         if drift_tube_radius_m <= trap.beam.radius_m {
@@ -180,6 +252,11 @@ impl TrapDynamics {
         times_s: &[f64],
     ) -> Result<DynamicRun> {
         let system = self.system(trap, loads)?;
+        // The states and the run's four arrays per species: about three times the state.
+        crate::limits::check_memory(
+            "the dynamic run",
+            crate::limits::bytes_for(&[times_s.len(), system.dim, 3], 8),
+        )?;
         let tolerances = system.tolerances(self.rtol);
         let y = integrate_stiff(&system, &system.initial_state(), times_s, &tolerances)?;
         Ok(DynamicRun::from_states(&system, times_s, &y))
@@ -189,11 +266,7 @@ impl TrapDynamics {
     /// states.
     pub(crate) fn system(&self, trap: &BeamTrap, loads: &[(String, f64)]) -> Result<TrapSystem> {
         if trap.photon_beam.is_some() {
-            return Err(Error::invalid(
-                "photon_beam",
-                "set",
-                "the dynamic model does not include a photon beam yet: use model \"fixed\"",
-            ));
+            return Err(photon_beam_error());
         }
         if loads.is_empty() && self.gas_feed.is_empty() {
             return Err(Error::invalid(
@@ -231,6 +304,14 @@ impl TrapDynamics {
             .collect::<Result<Vec<_>>>()?;
         TrapSystem::new(trap, self, rates)
     }
+}
+
+fn photon_beam_error() -> Error {
+    Error::invalid(
+        "photon_beam",
+        "set",
+        "the dynamic model does not include a photon beam yet: use model \"fixed\"",
+    )
 }
 
 fn label(sp: &Species) -> String {

@@ -3,6 +3,7 @@
 
 use ndarray::{Array1, Array2};
 
+use super::steady::SteadyMethod;
 use super::system::{
     TrapSystem, ENERGY_OUT, ESCAPED, FED, FEED_ENERGY_IN, HEAT_IN, IONIZATION_HEAT_IN,
 };
@@ -39,7 +40,9 @@ impl SpeciesHistory {
     }
 }
 
-/// Particle and energy accounts at each time.
+/// Particle and energy accounts at each time. For a steady state (one row at t = ∞) the
+/// accounts are rates: `fed`, `escaped` in particles/s, `energy_in_ev`, `energy_out_ev` in
+/// eV/s, and the balances compare inflow with outflow.
 #[derive(Clone, Debug)]
 pub struct Bookkeeping {
     /// Particles injected at t = 0.
@@ -74,6 +77,8 @@ pub struct DynamicRun {
     /// Electrons in the trap, N_e = IL/(ev).
     pub electrons_in_trap: f64,
     pub bookkeeping: Bookkeeping,
+    /// How a steady state was found (None for an evolution).
+    pub steady_method: Option<SteadyMethod>,
 }
 
 impl DynamicRun {
@@ -151,7 +156,44 @@ impl DynamicRun {
             well_depth_v: well,
             electrons_in_trap: system.electrons,
             bookkeeping: book,
+            steady_method: None,
         }
+    }
+
+    /// The run of one steady state `y` (time ∞): populations as in an evolution, the
+    /// bookkeeping as rates (the running totals' derivatives at `y`).
+    pub(crate) fn from_steady_state(system: &TrapSystem, y: &[f64], method: SteadyMethod) -> Self {
+        let mut f = vec![0.0; system.dim];
+        crate::solve::stiff::StiffSystem::rhs(system, y, &mut f);
+        let rows = Array2::from_shape_vec((1, y.len()), y.to_vec())
+            .unwrap_or_else(|_| Array2::zeros((1, y.len())));
+        let mut run = Self::from_states(system, &[f64::INFINITY], &rows);
+        let rate = |k: usize| f[system.total_index(k)];
+        let b = &mut run.bookkeeping;
+        b.initial_particles = 0.0;
+        b.fed[0] = rate(FED);
+        b.escaped[0] = rate(ESCAPED);
+        b.energy_in_ev[0] = rate(HEAT_IN) + rate(IONIZATION_HEAT_IN) + rate(FEED_ENERGY_IN);
+        b.energy_out_ev[0] = rate(ENERGY_OUT);
+        let flow = b.fed[0].max(b.escaped[0]);
+        b.particle_balance = if flow > 0.0 {
+            (b.fed[0] - b.escaped[0]).abs() / flow
+        } else {
+            0.0
+        };
+        let energy = b.energy_in_ev[0].max(b.energy_out_ev[0]);
+        b.energy_balance = if energy > 0.0 {
+            (b.energy_in_ev[0] - b.energy_out_ev[0]).abs() / energy
+        } else {
+            0.0
+        };
+        run.steady_method = Some(method);
+        run
+    }
+
+    /// The model that made this run ("dynamic").
+    pub fn model(&self) -> &'static str {
+        "dynamic"
     }
 
     /// The history of one species by label ("Kr", "84Kr").

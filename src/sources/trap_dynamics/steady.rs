@@ -1,0 +1,156 @@
+//! The steady state of the nonlinear ion-dynamics system: the populations and thermal
+//! contents at which every dN/dt and dU/dt vanishes.
+//!
+//! # Method
+//! Newton's method on the steady-state equations f(x) = 0 of the populations x (N and U of
+//! every species and charge; the running totals grow for ever and are left out), with the
+//! system's Jacobian and a dense LU (nalgebra), damped by halving the step until every
+//! component stays ≥ 0 (to the absolute tolerance) and the scaled step shrinks. The starting
+//! point is the evolution itself, at t = 1 s, then 10 s, … up to 1e4 s: Newton is tried from
+//! each in turn, so it always starts near the attracting state the trap actually reaches
+//! (the system can have other, unphysical roots). If Newton converges from none of them (a
+//! singular Jacobian: no escape and no feed, so the loads are conserved), the long solve
+//! itself is the answer, provided its last two decades agree to 1e-8 relative; otherwise
+//! the solve is an error saying the trap has not settled by 1e4 s.
+//!
+//! Accuracy: the Newton root satisfies the step criterion |Δx| ≤ 1e-3·(atol + rtol·|x|);
+//! the tests compare it with a long evolution (agreement 1e-6 relative) and check that the
+//! feed balances the escape.
+
+use nalgebra::{DMatrix, DVector};
+use ndarray::Array2;
+
+use super::system::{TrapSystem, TOTALS};
+use super::{DynamicRun, TrapDynamics};
+use crate::error::{Error, Result};
+use crate::solve::stiff::{integrate_stiff, StiffSystem, StiffTolerances};
+
+/// Decades at which Newton is tried from the evolving state (s).
+const START_TIMES_S: [f64; 5] = [1.0, 10.0, 100.0, 1e3, 1e4];
+const MAX_ITERATIONS: usize = 60;
+
+/// How a steady state was found.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum SteadyMethod {
+    /// Newton's method on the steady-state equations.
+    Newton,
+    /// The long-time solve itself (Newton did not converge: conserved loads).
+    LongSolve,
+}
+
+impl SteadyMethod {
+    pub fn name(self) -> &'static str {
+        match self {
+            SteadyMethod::Newton => "newton",
+            SteadyMethod::LongSolve => "long solve",
+        }
+    }
+}
+
+impl TrapDynamics {
+    /// The steady state of `loads` and the gas feeds in `trap` (see the module docs): a run
+    /// with one row at t = ∞ whose bookkeeping holds rates (per second) instead of totals.
+    pub fn steady_state(
+        &self,
+        trap: &crate::sources::beam_trap::BeamTrap,
+        loads: &[(String, f64)],
+    ) -> Result<DynamicRun> {
+        let system = self.system(trap, loads)?;
+        let tol = system.tolerances(self.rtol);
+        let mut y = system.initial_state();
+        let mut t = 0.0;
+        let mut previous: Option<Vec<f64>> = None;
+        for &t_next in &START_TIMES_S {
+            // Continue the evolution from the last start point (a few output times so that
+            // the restart costs little).
+            let times: Vec<f64> = (1..=4)
+                .map(|k| t + (t_next - t) * f64::from(k) / 4.0)
+                .collect();
+            let rows = integrate_stiff(&system, &y, &shift(&times, t), &tol)?;
+            y = rows.row(rows.nrows() - 1).to_vec();
+            t = t_next;
+            crate::interrupt::check()?;
+            if let Some(x) = newton(&system, &y, &tol)? {
+                let mut state = y.clone();
+                state[..x.len()].copy_from_slice(&x);
+                return Ok(DynamicRun::from_steady_state(
+                    &system,
+                    &state,
+                    SteadyMethod::Newton,
+                ));
+            }
+            if let Some(p) = &previous {
+                if settled(&system, p, &y) {
+                    return Ok(DynamicRun::from_steady_state(
+                        &system,
+                        &y,
+                        SteadyMethod::LongSolve,
+                    ));
+                }
+            }
+            previous = Some(y.clone());
+        }
+        Err(Error::invalid(
+            "steady state",
+            "not reached",
+            "the trap has not settled by 1e4 s and Newton's method did not converge: evolve over the times of interest instead",
+        ))
+    }
+}
+
+/// Output times relative to the restart at `t0`.
+fn shift(times: &[f64], t0: f64) -> Vec<f64> {
+    times.iter().map(|t| t - t0).collect()
+}
+
+/// Largest population change between two states relative to the particle scale.
+fn settled(system: &TrapSystem, a: &[f64], b: &[f64]) -> bool {
+    let m = system.dim - TOTALS;
+    let worst = a[..m]
+        .iter()
+        .zip(&b[..m])
+        .map(|(x, y)| (x - y).abs() / (system.scale + x.abs()))
+        .fold(0.0, f64::max);
+    worst <= 1e-8
+}
+
+/// Newton's method on the population block from `y`; `None` if it does not converge to a
+/// non-negative state.
+fn newton(system: &TrapSystem, y: &[f64], tol: &StiffTolerances) -> Result<Option<Vec<f64>>> {
+    let n = system.dim;
+    let m = n - TOTALS;
+    let mut state = y.to_vec();
+    let mut f = vec![0.0; n];
+    let mut jac = Array2::zeros((n, n));
+    let weight = |i: usize, x: f64| tol.atol[i] + tol.rtol * x.abs();
+    for _ in 0..MAX_ITERATIONS {
+        system.rhs(&state, &mut f);
+        system.jacobian(&state, &tol.atol, &mut jac);
+        let a = DMatrix::from_fn(m, m, |i, j| jac[[i, j]]);
+        let b = DVector::from_fn(m, |i, _| -f[i]);
+        let Some(dx) = a.lu().solve(&b) else {
+            return Ok(None);
+        };
+        if dx.iter().any(|v| !v.is_finite()) {
+            return Ok(None);
+        }
+        // Damp until every component stays non-negative (to its absolute tolerance).
+        let mut lambda = 1.0;
+        while lambda > 1e-6 && (0..m).any(|i| state[i] + lambda * dx[i] < -tol.atol[i]) {
+            lambda *= 0.5;
+        }
+        if lambda <= 1e-6 {
+            return Ok(None);
+        }
+        let size = (0..m)
+            .map(|i| (lambda * dx[i]).abs() / weight(i, state[i]))
+            .fold(0.0, f64::max);
+        for i in 0..m {
+            state[i] = (state[i] + lambda * dx[i]).max(0.0);
+        }
+        if size <= 1e-3 && lambda == 1.0 {
+            return Ok(Some(state[..m].to_vec()));
+        }
+    }
+    Ok(None)
+}
