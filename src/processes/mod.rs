@@ -20,3 +20,4 @@ pub mod radiative_recombination;
 pub mod relaxation;
 pub mod special;
 pub mod vacancy_jumps;
+pub mod verner;
