@@ -303,8 +303,15 @@ def evolve_batch(cases: Iterable[tuple[BeamTrap, str | int]], times_s: ArrayLike
 @final
 class PhotonBeam:
     def __new__(
-        cls, photon_energy_ev: float, flux_cm2_s: float, *, bandwidth_ev: float = 0.0
+        cls,
+        photon_energy_ev: float,
+        flux_cm2_s: float,
+        *,
+        bandwidth_ev: float = 0.0,
+        multi_electron: bool = True,
     ) -> PhotonBeam: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def photon_energy_ev(self) -> float: ...
     @property
@@ -337,7 +344,13 @@ def _photoionization_subshells(
 def _photoionization_total(
     element: str | int, charge: int, photon_energies_ev: NDArray[np.float64]
 ) -> NDArray[np.float64]: ...
-def _vacancy_relaxation(element: str | int, charge: int, subshell: str) -> NDArray[np.float64]: ...
+def _vacancy_relaxation(
+    element: str | int,
+    charge: int,
+    subshell: str,
+    energy_ev: float | None = None,
+    multi_electron: bool = True,
+) -> NDArray[np.float64]: ...
 
 @final
 class ThresholdRoute:
@@ -423,7 +436,11 @@ def photon_selectivity(
 # --- single-collision electron-impact source
 @final
 class ElectronImpactSource:
-    def __new__(cls, energy_ev: float, *, energy_spread_ev: float = 0.0) -> ElectronImpactSource: ...
+    def __new__(
+        cls, energy_ev: float, *, energy_spread_ev: float = 0.0, multi_electron: bool = True
+    ) -> ElectronImpactSource: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def energy_ev(self) -> float: ...
     @property
@@ -449,6 +466,8 @@ class ChargeYields:
     @property
     def direct_double_cm2(self) -> NDArray[np.float64]: ...
     @property
+    def direct_triple_cm2(self) -> NDArray[np.float64]: ...
+    @property
     def yields(self) -> NDArray[np.float64]: ...
     def ratio(self, charge: int, reference: int | None = None) -> float: ...
 
@@ -468,7 +487,11 @@ class AppearanceCurves:
     def appearance_energy_ev(self, charge: int) -> float: ...
 
 def appearance_curves(
-    element: str | int, energies_ev: ArrayLike, energy_spread_ev: float = 0.0
+    element: str | int,
+    energies_ev: ArrayLike,
+    energy_spread_ev: float = 0.0,
+    *,
+    multi_electron: bool = True,
 ) -> AppearanceCurves: ...
 
 # --- spectrum
