@@ -248,7 +248,10 @@ class BeamTrap:
         feed: tuple[int, float] | None = None,
         processes: Sequence[str] | None = None,
         photon_beam: PhotonBeam | None = None,
+        multi_electron: bool = True,
     ) -> BeamTrap: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def beam(self) -> ElectronBeam: ...
     @property

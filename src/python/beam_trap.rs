@@ -53,6 +53,9 @@ use crate::sources::beam_trap::{
 ///     every subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
 ///     double ionization (q → q+2); slower for heavy elements (the cascades are computed
 ///     once per ion and cached).
+/// multi_electron : bool, optional
+///     With ``"multiple_ionization"``: relax the vacancies with shake-off and double Auger
+///     decay too (default True); False gives the one-electron cascade.
 /// photon_beam : PhotonBeam, optional
 ///     A photon beam crossing the trapped ions: its photoionization and relaxation jumps
 ///     are added to the network (e.g. a synchrotron beam through the trap).
@@ -151,7 +154,7 @@ impl PyBeamTrap {
     #[new]
     #[pyo3(signature = (beam, length_m, *, residual_gas_pa=None, ion_temperature_ev=DEFAULT_ION_TEMPERATURE_EV,
                         gas_temperature_k=DEFAULT_GAS_TEMPERATURE_K, compensation=DEFAULT_COMPENSATION,
-                        loss_per_s=None, feed=None, processes=None, photon_beam=None))]
+                        loss_per_s=None, feed=None, processes=None, photon_beam=None, multi_electron=true))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: &Bound<'_, PyAny>,
@@ -164,6 +167,7 @@ impl PyBeamTrap {
         feed: Option<&Bound<'_, PyAny>>,
         processes: Option<&Bound<'_, PyAny>>,
         photon_beam: Option<&Bound<'_, PyAny>>,
+        multi_electron: bool,
     ) -> PyResult<Self> {
         let beam = beam.cast::<PyElectronBeam>().map_err(|_| {
             Error::invalid("beam", type_name(beam), "must be a chargecast.ElectronBeam")
@@ -195,9 +199,9 @@ impl PyBeamTrap {
             })?;
             builder = builder.photon_beam(photons.get().inner);
         }
-        Ok(PyBeamTrap {
-            inner: builder.build()?,
-        })
+        let mut inner = builder.build()?;
+        inner.relaxation = crate::processes::relaxation::Relaxation { multi_electron };
+        Ok(PyBeamTrap { inner })
     }
 
     /// The electron beam.
@@ -245,6 +249,11 @@ impl PyBeamTrap {
     #[getter]
     fn feed(&self) -> Option<(u32, f64)> {
         self.inner.feed
+    }
+    /// Whether inner-shell vacancies relax with shake-off and double Auger decay.
+    #[getter]
+    fn multi_electron(&self) -> bool {
+        self.inner.relaxation.multi_electron
     }
     /// Names of the processes in the network.
     #[getter]

@@ -402,3 +402,17 @@ def test_result_objects_plot_and_render():
     assert th.to_pandas().index.name == "charge"
     assert "photon" in th._repr_html_()
     plt.close("all")
+
+
+def test_trap_multiple_ionization_switch():
+    # With multiple ionization on, the multi-electron channels move Ar charge up after a
+    # short breeding time; switched off they are absent (the trap's one-electron cascade).
+    beam = cc.ElectronBeam(energy_ev=5000.0, current_a=0.1, radius_m=50e-6)
+    kw = dict(length_m=0.5, residual_gas_pa={"H2": 1e-9}, processes=["ionization", "multiple_ionization"])
+    on = cc.BeamTrap(beam, **kw)
+    off = cc.BeamTrap(beam, multi_electron=False, **kw)
+    assert on.multi_electron and not off.multi_electron
+    t = np.array([1e-4])
+    m_on = on.evolve("Ar", t).mean_charge()[0]
+    m_off = off.evolve("Ar", t).mean_charge()[0]
+    assert m_on > m_off
