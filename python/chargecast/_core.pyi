@@ -248,7 +248,7 @@ class BeamTrap:
         feed: tuple[int, float] | None = None,
         processes: Sequence[str] | None = None,
         photon_beam: PhotonBeam | None = None,
-        multi_electron: bool = True,
+        multi_electron: bool | None = None,
     ) -> BeamTrap: ...
     @property
     def multi_electron(self) -> bool: ...
@@ -311,7 +311,7 @@ class PhotonBeam:
         flux_cm2_s: float,
         *,
         bandwidth_ev: float = 0.0,
-        multi_electron: bool = True,
+        multi_electron: bool | None = None,
     ) -> PhotonBeam: ...
     @property
     def multi_electron(self) -> bool: ...
@@ -352,7 +352,7 @@ def _vacancy_relaxation(
     charge: int,
     subshell: str,
     energy_ev: float | None = None,
-    multi_electron: bool = True,
+    multi_electron: bool | None = None,
 ) -> NDArray[np.float64]: ...
 
 @final
@@ -440,7 +440,7 @@ def photon_selectivity(
 @final
 class ElectronImpactSource:
     def __new__(
-        cls, energy_ev: float, *, energy_spread_ev: float = 0.0, multi_electron: bool = True
+        cls, energy_ev: float, *, energy_spread_ev: float = 0.0, multi_electron: bool | None = None
     ) -> ElectronImpactSource: ...
     @property
     def multi_electron(self) -> bool: ...
@@ -494,7 +494,7 @@ def appearance_curves(
     energies_ev: ArrayLike,
     energy_spread_ev: float = 0.0,
     *,
-    multi_electron: bool = True,
+    multi_electron: bool | None = None,
 ) -> AppearanceCurves: ...
 
 # --- spectrum

@@ -154,7 +154,7 @@ impl PyBeamTrap {
     #[new]
     #[pyo3(signature = (beam, length_m, *, residual_gas_pa=None, ion_temperature_ev=DEFAULT_ION_TEMPERATURE_EV,
                         gas_temperature_k=DEFAULT_GAS_TEMPERATURE_K, compensation=DEFAULT_COMPENSATION,
-                        loss_per_s=None, feed=None, processes=None, photon_beam=None, multi_electron=true))]
+                        loss_per_s=None, feed=None, processes=None, photon_beam=None, multi_electron=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: &Bound<'_, PyAny>,
@@ -167,8 +167,9 @@ impl PyBeamTrap {
         feed: Option<&Bound<'_, PyAny>>,
         processes: Option<&Bound<'_, PyAny>>,
         photon_beam: Option<&Bound<'_, PyAny>>,
-        multi_electron: bool,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         let beam = beam.cast::<PyElectronBeam>().map_err(|_| {
             Error::invalid("beam", type_name(beam), "must be a chargecast.ElectronBeam")
         })?;

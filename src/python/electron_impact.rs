@@ -47,12 +47,13 @@ pub(crate) struct PyElectronImpactSource {
 #[pymethods]
 impl PyElectronImpactSource {
     #[new]
-    #[pyo3(signature = (energy_ev, *, energy_spread_ev=0.0, multi_electron=true))]
+    #[pyo3(signature = (energy_ev, *, energy_spread_ev=0.0, multi_electron=None))]
     fn new(
         energy_ev: &Bound<'_, PyAny>,
         #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
-        multi_electron: bool,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         Ok(PyElectronImpactSource {
             inner: ElectronImpactSource::new(float_arg("energy_ev", energy_ev)?, energy_spread_ev)?
                 .with_relaxation(Relaxation { multi_electron }),
@@ -434,14 +435,15 @@ pub(crate) fn curves_result<'py>(
 /// >>> curves.appearance_energy_ev(1), curves.appearance_energy_ev(2)
 /// (14.0, 40.0)
 #[pyfunction]
-#[pyo3(name = "appearance_curves", signature = (element, energies_ev, energy_spread_ev=0.0, *, multi_electron=true))]
+#[pyo3(name = "appearance_curves", signature = (element, energies_ev, energy_spread_ev=0.0, *, multi_electron=None))]
 fn appearance_curves_py<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     energies_ev: &Bound<'py, PyAny>,
     #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
-    multi_electron: bool,
+    multi_electron: Option<&Bound<'py, PyAny>>,
 ) -> PyResult<Bound<'py, PyAny>> {
+    let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
     curves(
         py,
         element,

@@ -75,13 +75,14 @@ impl PyPhotonBeam {
 #[pymethods]
 impl PyPhotonBeam {
     #[new]
-    #[pyo3(signature = (photon_energy_ev, flux_cm2_s, *, bandwidth_ev=0.0, multi_electron=true))]
+    #[pyo3(signature = (photon_energy_ev, flux_cm2_s, *, bandwidth_ev=0.0, multi_electron=None))]
     fn new(
         photon_energy_ev: &Bound<'_, PyAny>,
         flux_cm2_s: &Bound<'_, PyAny>,
         #[pyo3(from_py_with = super::convert::real::bandwidth_ev)] bandwidth_ev: f64,
-        multi_electron: bool,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         Ok(PyPhotonBeam {
             inner: PhotonBeam::new(
                 float_arg("photon_energy_ev", photon_energy_ev)?,
@@ -293,15 +294,16 @@ fn _photoionization_total<'py>(
 
 /// P(k), k = 0, 1, … extra electrons after a vacancy in `subshell` of ion `charge`.
 #[pyfunction]
-#[pyo3(signature = (element, charge, subshell, energy_ev=None, multi_electron=true))]
+#[pyo3(signature = (element, charge, subshell, energy_ev=None, multi_electron=None))]
 fn _vacancy_relaxation<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     charge: &Bound<'py, PyAny>,
     subshell: &str,
     energy_ev: Option<&Bound<'py, PyAny>>,
-    multi_electron: bool,
+    multi_electron: Option<&Bound<'py, PyAny>>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
     let el = element_arg(element)?;
     let charge = int_arg("charge", charge)?;
     let s = Subshell::parse(subshell.trim())?;
@@ -519,8 +521,8 @@ impl PyPhotonThresholds {
 /// 12
 /// >>> th.charges[:3].tolist(), float(th.threshold_ev[0])
 /// ([1, 2, 3], 15.7596...)
-/// >>> [r.subshell for r in th.routes[3]]       # Ar4+ needs a K hole
-/// ['1s']
+/// >>> [r.subshell for r in th.routes[3]]       # Ar4+: K holes, and L holes with shake-off
+/// ['1s', '2s', '2p']
 /// >>> round(float(th.yield_per_photon.sum()), 9)
 /// 1.0
 #[pyfunction]
