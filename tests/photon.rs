@@ -5,7 +5,7 @@ use chargecast::processes::photoionization::{
     neutral_photoabsorption_cm2, photoionization_cross_section_cm2, subshell_cross_sections_cm2,
 };
 use chargecast::processes::relaxation::{
-    max_extra_electrons, mean_extra_charge, vacancy_relaxation,
+    max_extra_electrons, mean_extra_charge, vacancy_relaxation, vacancy_relaxation_with, Relaxation,
 };
 use chargecast::solve::evolve;
 use chargecast::sources::electron_impact::{appearance_curves, ElectronImpactSource};
@@ -215,7 +215,10 @@ proptest! {
         let ion = el.ion(i64::from(q)).unwrap();
         let shells = ion.subshells();
         let s = shells[pick % shells.len()];
-        let p = vacancy_relaxation(&ion, s.subshell).unwrap();
+        // The one-electron cascade: bounded by the hole's binding energy (shake-off draws
+        // on the incoming particle's energy instead; see tests/relaxation_channels.rs).
+        let p = vacancy_relaxation_with(&ion, s.subshell, Relaxation::SINGLE_ELECTRON, f64::INFINITY)
+            .unwrap();
         let total: f64 = p.iter().sum();
         prop_assert!((total - 1.0).abs() < 1e-12, "sum {}", total);
         prop_assert!(p.iter().all(|x| *x >= 0.0));

@@ -263,7 +263,10 @@ class BeamTrap:
         drift_tube_radius_m: float | None = None,
         gas_feed_pa: dict[str, float] | None = None,
         dynamic_processes: Sequence[str] | None = None,
+        multi_electron: bool | None = None,
     ) -> BeamTrap: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def beam(self) -> ElectronBeam: ...
     @property
@@ -335,8 +338,15 @@ def evolve_batch(cases: Iterable[tuple[BeamTrap, str | int]], times_s: ArrayLike
 @final
 class PhotonBeam:
     def __new__(
-        cls, photon_energy_ev: float, flux_cm2_s: float, *, bandwidth_ev: float = 0.0
+        cls,
+        photon_energy_ev: float,
+        flux_cm2_s: float,
+        *,
+        bandwidth_ev: float = 0.0,
+        multi_electron: bool | None = None,
     ) -> PhotonBeam: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def photon_energy_ev(self) -> float: ...
     @property
@@ -369,7 +379,13 @@ def _photoionization_subshells(
 def _photoionization_total(
     element: str | int, charge: int, photon_energies_ev: NDArray[np.float64]
 ) -> NDArray[np.float64]: ...
-def _vacancy_relaxation(element: str | int, charge: int, subshell: str) -> NDArray[np.float64]: ...
+def _vacancy_relaxation(
+    element: str | int,
+    charge: int,
+    subshell: str,
+    energy_ev: float | None = None,
+    multi_electron: bool | None = None,
+) -> NDArray[np.float64]: ...
 
 @final
 class ThresholdRoute:
@@ -455,7 +471,11 @@ def photon_selectivity(
 # --- single-collision electron-impact source
 @final
 class ElectronImpactSource:
-    def __new__(cls, energy_ev: float, *, energy_spread_ev: float = 0.0) -> ElectronImpactSource: ...
+    def __new__(
+        cls, energy_ev: float, *, energy_spread_ev: float = 0.0, multi_electron: bool | None = None
+    ) -> ElectronImpactSource: ...
+    @property
+    def multi_electron(self) -> bool: ...
     @property
     def energy_ev(self) -> float: ...
     @property
@@ -481,6 +501,8 @@ class ChargeYields:
     @property
     def direct_double_cm2(self) -> NDArray[np.float64]: ...
     @property
+    def direct_triple_cm2(self) -> NDArray[np.float64]: ...
+    @property
     def yields(self) -> NDArray[np.float64]: ...
     def ratio(self, charge: int, reference: int | None = None) -> float: ...
 
@@ -500,7 +522,11 @@ class AppearanceCurves:
     def appearance_energy_ev(self, charge: int) -> float: ...
 
 def appearance_curves(
-    element: str | int, energies_ev: ArrayLike, energy_spread_ev: float = 0.0
+    element: str | int,
+    energies_ev: ArrayLike,
+    energy_spread_ev: float = 0.0,
+    *,
+    multi_electron: bool | None = None,
 ) -> AppearanceCurves: ...
 
 # --- spectrum

@@ -21,8 +21,8 @@ class ChargeYields(_core.ChargeYields):
 
     Made by ``ElectronImpactSource.charge_yields``: ``element``, ``energy_ev``,
     ``energy_spread_ev``, ``charges`` (1 … highest with a non-zero cross section),
-    ``cross_section_cm2``, ``subshell_ionization_cm2``, ``direct_double_cm2``, ``yields``
-    and ``ratio(charge, reference=1)``.
+    ``cross_section_cm2``, ``subshell_ionization_cm2``, ``direct_double_cm2``,
+    ``direct_triple_cm2``, ``yields`` and ``ratio(charge, reference=1)``.
     """
 
     __slots__ = ()
@@ -34,7 +34,7 @@ class ChargeYields(_core.ChargeYields):
         -------
         pandas.DataFrame
             Columns ``cross_section_cm2``, ``subshell_ionization_cm2``, ``direct_double_cm2``,
-            ``yield``; index ``charge``.
+            ``direct_triple_cm2``, ``yield``; index ``charge``.
         """
         pd = require_pandas()
         return pd.DataFrame(
@@ -42,6 +42,7 @@ class ChargeYields(_core.ChargeYields):
                 "cross_section_cm2": self.cross_section_cm2,
                 "subshell_ionization_cm2": self.subshell_ionization_cm2,
                 "direct_double_cm2": self.direct_double_cm2,
+                "direct_triple_cm2": self.direct_triple_cm2,
                 "yield": self.yields,
             },
             index=pd.Index(self.charges, name="charge"),

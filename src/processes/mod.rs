@@ -24,3 +24,4 @@ pub mod radiative_recombination_rate;
 pub mod relaxation;
 pub mod special;
 pub mod vacancy_jumps;
+pub mod verner;

@@ -53,6 +53,9 @@ use crate::sources::beam_trap::{
 ///     every subshell's ionization relax by Auger cascades (q → q+1+k) and adds direct
 ///     double ionization (q → q+2); slower for heavy elements (the cascades are computed
 ///     once per ion and cached).
+/// multi_electron : bool, optional
+///     With ``"multiple_ionization"``: relax the vacancies with shake-off and double Auger
+///     decay too (default True); False gives the one-electron cascade.
 /// photon_beam : PhotonBeam, optional
 ///     A photon beam crossing the trapped ions: its photoionization and relaxation jumps
 ///     are added to the network (e.g. a synchrotron beam through the trap); fixed model only.
@@ -204,7 +207,7 @@ impl PyBeamTrap {
                         gas_temperature_k=DEFAULT_GAS_TEMPERATURE_K, compensation=DEFAULT_COMPENSATION,
                         loss_per_s=None, feed=None, processes=None, photon_beam=None,
                         model=None, axial_barrier_v=None, drift_tube_radius_m=None, gas_feed_pa=None,
-                        dynamic_processes=None))]
+                        dynamic_processes=None, multi_electron=None))]
     #[allow(clippy::too_many_arguments)]
     fn new(
         beam: &Bound<'_, PyAny>,
@@ -222,7 +225,9 @@ impl PyBeamTrap {
         drift_tube_radius_m: Option<&Bound<'_, PyAny>>,
         gas_feed_pa: Option<&Bound<'_, PyAny>>,
         dynamic_processes: Option<&Bound<'_, PyAny>>,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         let beam = beam.cast::<PyElectronBeam>().map_err(|_| {
             Error::invalid("beam", type_name(beam), "must be a chargecast.ElectronBeam")
         })?;
@@ -279,9 +284,9 @@ impl PyBeamTrap {
         if let Some(sw) = super::trap_dynamics::dynamic_processes_arg(dynamic_processes)? {
             builder = builder.dynamic_processes(sw);
         }
-        Ok(PyBeamTrap {
-            inner: builder.build()?,
-        })
+        let mut inner = builder.build()?;
+        inner.relaxation = crate::processes::relaxation::Relaxation { multi_electron };
+        Ok(PyBeamTrap { inner })
     }
 
     /// The electron beam.
@@ -335,6 +340,11 @@ impl PyBeamTrap {
     #[getter]
     fn feed(&self) -> Option<(u32, f64)> {
         self.inner.feed
+    }
+    /// Whether inner-shell vacancies relax with shake-off and double Auger decay.
+    #[getter]
+    fn multi_electron(&self) -> bool {
+        self.inner.relaxation.multi_electron
     }
     /// Names of the processes in the network.
     #[getter]

@@ -131,6 +131,20 @@ fn is_bool(value: &Bound<'_, PyAny>) -> bool {
     value.is_instance_of::<PyBool>() || type_name(value) == "bool" || type_name(value) == "bool_"
 }
 
+/// A switch from Python: True or False (Python's or numpy's bool); None or absent gives
+/// `default`. Anything else is a `TypeError` naming the parameter.
+pub(crate) fn flag_arg(
+    name: &str,
+    value: Option<&Bound<'_, PyAny>>,
+    default: bool,
+) -> PyResult<bool> {
+    match value.filter(|v| !v.is_none()) {
+        None => Ok(default),
+        Some(v) if is_bool(v) => v.is_truthy(),
+        Some(v) => Err(wrong_type(name, v, "True or False")),
+    }
+}
+
 /// A whole number from Python: int or a numpy integer (through `__index__`). Bools and
 /// non-integers give a `TypeError` naming the parameter; integers beyond 64 bits an
 /// `InvalidParameterError`.

@@ -8,15 +8,17 @@ use super::convert::{array1_arg, float_arg, fmt_g, int_arg};
 use super::{element_arg, guard, matrix_to_py, to_py};
 use crate::atoms::Element;
 use crate::error::Error;
+use crate::processes::relaxation::Relaxation;
 use crate::sources::electron_impact::{
-    appearance_curves, ElectronImpactSource, ImpactCrossSections,
+    appearance_curves_with, ElectronImpactSource, ImpactCrossSections,
 };
 
 /// A single-collision electron-impact source (mass-spectrometer ion source).
 ///
 /// Each neutral atom meets at most one electron. Charges form by Lotz ionization of each
-/// subshell followed by relaxation of the hole (inner shells add charges), plus direct
-/// double ionization (Shevelko & Tawara 1995 form, parameters from memory, ±30 %).
+/// subshell followed by relaxation of the hole (inner shells add charges, with shake-off and
+/// double Auger decay), plus direct double and triple ionization (Shevelko & Tawara 1995
+/// form, parameters from memory, ±30 % and ±50 %).
 ///
 /// Parameters
 /// ----------
@@ -24,6 +26,9 @@ use crate::sources::electron_impact::{
 ///     Electron energy (eV), > 0.
 /// energy_spread_ev : float, optional
 ///     Gaussian energy spread, full width at half maximum (eV), ≥ 0.
+/// multi_electron : bool, optional
+///     Include shake-off, double Auger decay and direct triple ionization (default True);
+///     False gives the one-electron relaxation model and direct double ionization only.
 ///
 /// Examples
 /// --------
@@ -31,7 +36,7 @@ use crate::sources::electron_impact::{
 /// >>> src = cc.ElectronImpactSource(energy_ev=70.0, energy_spread_ev=0.5)
 /// >>> y = src.charge_yields("Xe")
 /// >>> y.charges.tolist()
-/// [1, 2]
+/// [1, 2, 3]
 /// >>> 0.05 < y.ratio(2) < 0.5
 /// True
 #[pyclass(name = "ElectronImpactSource", module = "chargecast", frozen)]
@@ -42,14 +47,22 @@ pub(crate) struct PyElectronImpactSource {
 #[pymethods]
 impl PyElectronImpactSource {
     #[new]
-    #[pyo3(signature = (energy_ev, *, energy_spread_ev=0.0))]
+    #[pyo3(signature = (energy_ev, *, energy_spread_ev=0.0, multi_electron=None))]
     fn new(
         energy_ev: &Bound<'_, PyAny>,
         #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         Ok(PyElectronImpactSource {
-            inner: ElectronImpactSource::new(float_arg("energy_ev", energy_ev)?, energy_spread_ev)?,
+            inner: ElectronImpactSource::new(float_arg("energy_ev", energy_ev)?, energy_spread_ev)?
+                .with_relaxation(Relaxation { multi_electron }),
         })
+    }
+    /// Whether shake-off, double Auger decay and direct triple ionization are included.
+    #[getter]
+    fn multi_electron(&self) -> bool {
+        self.inner.relaxation.multi_electron
     }
     /// Electron energy (eV).
     #[getter]
@@ -101,7 +114,13 @@ impl PyElectronImpactSource {
         element: &Bound<'py, PyAny>,
         energies_ev: &Bound<'py, PyAny>,
     ) -> PyResult<Bound<'py, PyAny>> {
-        curves(py, element, energies_ev, self.inner.energy_spread_ev)
+        curves(
+            py,
+            element,
+            energies_ev,
+            self.inner.energy_spread_ev,
+            self.inner.relaxation,
+        )
     }
 
     fn __repr__(&self) -> String {
@@ -208,6 +227,11 @@ impl PyChargeYields {
     #[getter]
     fn direct_double_cm2<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
         to_py(py, self.shown(&self.cs.direct_double_cm2))
+    }
+    /// Part from direct triple ionization (cm²).
+    #[getter]
+    fn direct_triple_cm2<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        to_py(py, self.shown(&self.cs.direct_triple_cm2))
     }
     /// Relative yields (sum 1; all 0 below the first ionization energy).
     #[getter]
@@ -341,6 +365,7 @@ fn curves<'py>(
     element: &Bound<'py, PyAny>,
     energies_ev: &Bound<'py, PyAny>,
     energy_spread_ev: f64,
+    relaxation: Relaxation,
 ) -> PyResult<Bound<'py, PyAny>> {
     let el = element_arg(element)?;
     let ndim: usize = py
@@ -356,7 +381,9 @@ fn curves<'py>(
         .into());
     }
     let e = array1_arg("energies_ev", energies_ev)?;
-    let sigma = guard(py, || appearance_curves(el, &e, energy_spread_ev))?;
+    let sigma = guard(py, || {
+        appearance_curves_with(el, &e, energy_spread_ev, relaxation)
+    })?;
     curves_result(py, el, e, energy_spread_ev, sigma)
 }
 
@@ -393,6 +420,8 @@ pub(crate) fn curves_result<'py>(
 ///     Electron energies (eV), > 0.
 /// energy_spread_ev : float, optional
 ///     Gaussian energy spread of the electrons, full width at half maximum (eV), ≥ 0.
+/// multi_electron : bool, optional
+///     Include shake-off, double Auger decay and direct triple ionization (default True).
 ///
 /// Returns
 /// -------
@@ -406,14 +435,22 @@ pub(crate) fn curves_result<'py>(
 /// >>> curves.appearance_energy_ev(1), curves.appearance_energy_ev(2)
 /// (14.0, 40.0)
 #[pyfunction]
-#[pyo3(name = "appearance_curves", signature = (element, energies_ev, energy_spread_ev=0.0))]
+#[pyo3(name = "appearance_curves", signature = (element, energies_ev, energy_spread_ev=0.0, *, multi_electron=None))]
 fn appearance_curves_py<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     energies_ev: &Bound<'py, PyAny>,
     #[pyo3(from_py_with = super::convert::real::energy_spread_ev)] energy_spread_ev: f64,
+    multi_electron: Option<&Bound<'py, PyAny>>,
 ) -> PyResult<Bound<'py, PyAny>> {
-    curves(py, element, energies_ev, energy_spread_ev)
+    let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
+    curves(
+        py,
+        element,
+        energies_ev,
+        energy_spread_ev,
+        Relaxation { multi_electron },
+    )
 }
 
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {

@@ -12,7 +12,7 @@ use super::evolution::PyEvolution;
 use super::{element_arg, guard, matrix_to_py, to_py};
 use crate::atoms::{Element, Subshell};
 use crate::processes::photoionization::subshell_cross_sections_cm2;
-use crate::processes::relaxation::{max_extra_electrons, vacancy_relaxation};
+use crate::processes::relaxation::{max_extra_electrons, vacancy_relaxation_with, Relaxation};
 use crate::sources::photon_beam::{
     photon_network, photon_selectivity, photon_thresholds, ChargeThreshold, PhotonBeam,
     Selectivity, ThresholdRoute,
@@ -22,8 +22,9 @@ use crate::sources::photon_beam::{
 ///
 /// Every ion absorbs photons at the rate Φ·σ_s(hν) per subshell s; inner-shell holes relax
 /// and add charges, so the beam drives jumps q → q+1+k and the charge state builds up photon
-/// after photon under high flux. Direct multiple photoionization (shake-off, a few per cent)
-/// and non-linear absorption are not included.
+/// after photon under high flux. Shake-off accompanying inner-shell photoionization and
+/// double Auger decay are included (``multi_electron``); direct double photoionization of
+/// the valence shell and non-linear absorption are not.
 ///
 /// Parameters
 /// ----------
@@ -33,6 +34,9 @@ use crate::sources::photon_beam::{
 ///     Photon flux (photons cm⁻² s⁻¹), ≥ 0.
 /// bandwidth_ev : float, optional
 ///     Full width at half maximum of a Gaussian spectrum (eV), ≥ 0; 0 = monochromatic.
+/// multi_electron : bool, optional
+///     Relax vacancies with shake-off and double Auger decay (default True); False gives the
+///     one-electron cascade (fluorescence, Coster–Kronig, Auger).
 ///
 /// Examples
 /// --------
@@ -71,19 +75,27 @@ impl PyPhotonBeam {
 #[pymethods]
 impl PyPhotonBeam {
     #[new]
-    #[pyo3(signature = (photon_energy_ev, flux_cm2_s, *, bandwidth_ev=0.0))]
+    #[pyo3(signature = (photon_energy_ev, flux_cm2_s, *, bandwidth_ev=0.0, multi_electron=None))]
     fn new(
         photon_energy_ev: &Bound<'_, PyAny>,
         flux_cm2_s: &Bound<'_, PyAny>,
         #[pyo3(from_py_with = super::convert::real::bandwidth_ev)] bandwidth_ev: f64,
+        multi_electron: Option<&Bound<'_, PyAny>>,
     ) -> PyResult<Self> {
+        let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
         Ok(PyPhotonBeam {
             inner: PhotonBeam::new(
                 float_arg("photon_energy_ev", photon_energy_ev)?,
                 float_arg("flux_cm2_s", flux_cm2_s)?,
                 bandwidth_ev,
-            )?,
+            )?
+            .with_relaxation(Relaxation { multi_electron }),
         })
+    }
+    /// Whether the vacancies relax with shake-off and double Auger decay.
+    #[getter]
+    fn multi_electron(&self) -> bool {
+        self.inner.relaxation.multi_electron
     }
     /// Photon energy (eV).
     #[getter]
@@ -282,20 +294,32 @@ fn _photoionization_total<'py>(
 
 /// P(k), k = 0, 1, … extra electrons after a vacancy in `subshell` of ion `charge`.
 #[pyfunction]
+#[pyo3(signature = (element, charge, subshell, energy_ev=None, multi_electron=None))]
 fn _vacancy_relaxation<'py>(
     py: Python<'py>,
     element: &Bound<'py, PyAny>,
     charge: &Bound<'py, PyAny>,
     subshell: &str,
+    energy_ev: Option<&Bound<'py, PyAny>>,
+    multi_electron: Option<&Bound<'py, PyAny>>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let multi_electron = super::convert::flag_arg("multi_electron", multi_electron, true)?;
     let el = element_arg(element)?;
     let charge = int_arg("charge", charge)?;
     let s = Subshell::parse(subshell.trim())?;
+    let energy_ev = match energy_ev {
+        Some(e) if !e.is_none() => {
+            let e = float_arg("energy_ev", e)?;
+            crate::error::require_positive("energy_ev", e)?;
+            e
+        }
+        _ => f64::INFINITY,
+    };
     let p = guard(py, || {
         let ion = el.ion(charge)?;
         // The bound on extra electrons also checks that the subshell is occupied.
         max_extra_electrons(&ion, s)?;
-        Ok(vacancy_relaxation(&ion, s)?.to_vec())
+        Ok(vacancy_relaxation_with(&ion, s, Relaxation { multi_electron }, energy_ev)?.to_vec())
     })?;
     Ok(to_py(py, p))
 }
@@ -497,8 +521,8 @@ impl PyPhotonThresholds {
 /// 12
 /// >>> th.charges[:3].tolist(), float(th.threshold_ev[0])
 /// ([1, 2, 3], 15.7596...)
-/// >>> [r.subshell for r in th.routes[3]]       # Ar4+ needs a K hole
-/// ['1s']
+/// >>> [r.subshell for r in th.routes[3]]       # Ar4+: K holes, and L holes with shake-off
+/// ['1s', '2s', '2p']
 /// >>> round(float(th.yield_per_photon.sum()), 9)
 /// 1.0
 #[pyfunction]

@@ -53,6 +53,7 @@ use crate::processes::ion_lotz::{ion_lotz_shells, ionization_cross_sections_cm2}
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
 use crate::processes::lotz::LotzConstants;
 use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
+use crate::processes::relaxation::Relaxation;
 use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 
@@ -231,6 +232,9 @@ pub struct BeamTrap {
     pub photon_beam: Option<PhotonBeam>,
     /// The ion model: fixed (default) or dynamic.
     pub model: TrapModel,
+    /// Relaxation channels of the inner-shell vacancies electron impact makes (used with
+    /// `multiple_ionization`; all channels by default).
+    pub relaxation: Relaxation,
 }
 
 impl BeamTrap {
@@ -266,6 +270,7 @@ impl BeamTrap {
             feed: None,
             photon_beam: None,
             model: TrapModel::Fixed,
+            relaxation: Relaxation::default(),
         })
     }
 
@@ -332,7 +337,7 @@ impl BeamTrap {
                     lotz_subshell_cross_section_cm2(&lotz, energy_ev),
                 )
             });
-        let mut per_charge = vacancy_jumps(&ion, lotz_per_subshell)?;
+        let mut per_charge = vacancy_jumps(&ion, self.relaxation, energy_ev, lotz_per_subshell)?;
         if let Some(slot) = per_charge.get_mut(charge as usize + 2) {
             *slot += direct_double_ionization_cm2(&ion, energy_ev);
         }

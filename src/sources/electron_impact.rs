@@ -4,7 +4,7 @@
 //!
 //! Partial cross section for charge c ≥ 1 at electron energy E:
 //!
-//!   σ_c(E) = Σ_s σ_s^Lotz(E) · P_s(c − 1) + δ_{c,2} · σ₂^direct(E)
+//!   σ_c(E) = Σ_s σ_s^Lotz(E) · P_s(c − 1) + δ_{c,2} · σ₂^direct(E) + δ_{c,3} · σ₃^direct(E)
 //!
 //! * σ_s^Lotz: Lotz ionization of subshell s of the neutral atom ([`crate::processes::lotz`],
 //!   fitted constants where held, simplified elsewhere), with the subshell binding energies
@@ -12,12 +12,16 @@
 //! * P_s(k): relaxation of the hole in s ([`crate::processes::relaxation`]) — an outer hole
 //!   stays (k = 0), an inner hole whose binding exceeds the double-ionization threshold can
 //!   add charges;
-//! * σ₂^direct: direct double ionization ([`crate::processes::double_ionization`]).
+//! * σ₂^direct, σ₃^direct: direct double and triple ionization
+//!   ([`crate::processes::double_ionization`]).
 //!
 //! Each σ_c is zero below its threshold Σ_{j<c} IE_j (the relaxation obeys the energy bound).
 //! A spread of electron energies (Gaussian, FWHM) is folded in by averaging σ_c over it.
-//! Not included: direct triple and higher ionization, excitation–autoionization, ionization
-//! of molecules.
+//! The relaxation includes shake-off and double Auger decay, and σ₃^direct is added, unless
+//! the source's [`Relaxation`] switches the multi-electron channels off (then the results
+//! are those of the one-electron cascade and σ₂^direct alone).
+//! Not included: direct quadruple and higher ionization, excitation–autoionization,
+//! ionization of molecules.
 //!
 //! The sum Σ_s σ_s P_s(c − 1) is [`crate::processes::vacancy_jumps`].
 //!
@@ -35,9 +39,12 @@ use rayon::prelude::*;
 
 use crate::atoms::Element;
 use crate::error::{require_all_positive, require_non_negative, require_positive, Result};
-use crate::processes::double_ionization::direct_double_ionization_cm2;
+use crate::processes::double_ionization::{
+    direct_double_ionization_cm2, direct_triple_ionization_cm2,
+};
 use crate::processes::ion_lotz::ion_lotz_shells;
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
+use crate::processes::relaxation::Relaxation;
 use crate::processes::vacancy_jumps::vacancy_jumps;
 use crate::sources::photon_beam::gaussian_nodes;
 
@@ -49,6 +56,8 @@ pub struct ImpactCrossSections {
     pub subshell_ionization_cm2: Vec<f64>,
     /// Direct double ionization (cm²), non-zero at charge 2 only.
     pub direct_double_cm2: Vec<f64>,
+    /// Direct triple ionization (cm²), non-zero at charge 3 only.
+    pub direct_triple_cm2: Vec<f64>,
 }
 
 impl ImpactCrossSections {
@@ -56,6 +65,7 @@ impl ImpactCrossSections {
         Self {
             subshell_ionization_cm2: vec![0.0; n],
             direct_double_cm2: vec![0.0; n],
+            direct_triple_cm2: vec![0.0; n],
         }
     }
 
@@ -64,7 +74,8 @@ impl ImpactCrossSections {
         self.subshell_ionization_cm2
             .iter()
             .zip(&self.direct_double_cm2)
-            .map(|(a, b)| a + b)
+            .zip(&self.direct_triple_cm2)
+            .map(|((a, b), c)| a + b + c)
             .collect()
     }
 
@@ -83,13 +94,23 @@ impl ImpactCrossSections {
         {
             *a += weight * b;
         }
+        for (a, b) in self
+            .direct_triple_cm2
+            .iter_mut()
+            .zip(&other.direct_triple_cm2)
+        {
+            *a += weight * b;
+        }
     }
 }
 
-/// Partial cross sections at one electron energy (no spread).
+/// Partial cross sections at one electron energy (no spread), the vacancies relaxing
+/// through `relaxation`'s channels (with the multi-electron channels, direct triple
+/// ionization too).
 pub fn impact_cross_sections_at(
     element: &'static Element,
     energy_ev: f64,
+    relaxation: Relaxation,
 ) -> Result<ImpactCrossSections> {
     let neutral = element.ion(0)?;
     let n = element.z() as usize + 1;
@@ -104,9 +125,17 @@ pub fn impact_cross_sections_at(
             )
         });
     let mut out = ImpactCrossSections::zeros(n);
-    out.subshell_ionization_cm2 = vacancy_jumps(&neutral, lotz_per_subshell)?;
+    out.subshell_ionization_cm2 =
+        vacancy_jumps(&neutral, relaxation, energy_ev, lotz_per_subshell)?;
     if let Some(slot) = out.direct_double_cm2.get_mut(2) {
         *slot = direct_double_ionization_cm2(&neutral, energy_ev);
+    }
+    if let Some(slot) = out
+        .direct_triple_cm2
+        .get_mut(3)
+        .filter(|_| relaxation.multi_electron)
+    {
+        *slot = direct_triple_ionization_cm2(&neutral, energy_ev);
     }
     Ok(out)
 }
@@ -117,6 +146,8 @@ pub fn impact_cross_sections_at(
 pub struct ElectronImpactSource {
     pub energy_ev: f64,
     pub energy_spread_ev: f64,
+    /// Relaxation channels (all by default; off also drops direct triple ionization).
+    pub relaxation: Relaxation,
 }
 
 impl ElectronImpactSource {
@@ -127,13 +158,20 @@ impl ElectronImpactSource {
         Ok(Self {
             energy_ev,
             energy_spread_ev,
+            relaxation: Relaxation::default(),
         })
+    }
+
+    /// The same source with `relaxation`'s channels.
+    pub fn with_relaxation(mut self, relaxation: Relaxation) -> Self {
+        self.relaxation = relaxation;
+        self
     }
 
     /// Partial cross sections averaged over the energy spread.
     pub fn cross_sections(&self, element: &'static Element) -> Result<ImpactCrossSections> {
         let me = Self::new(self.energy_ev, self.energy_spread_ev)?;
-        spread_cross_sections(element, me.energy_ev, me.energy_spread_ev)
+        spread_cross_sections(element, me.energy_ev, me.energy_spread_ev, self.relaxation)
     }
 
     /// Relative yields of each final charge 0…Z (index 0 is 0) for one collision with the
@@ -153,10 +191,11 @@ fn spread_cross_sections(
     element: &'static Element,
     energy_ev: f64,
     spread_ev: f64,
+    relaxation: Relaxation,
 ) -> Result<ImpactCrossSections> {
     let mut out = ImpactCrossSections::zeros(element.z() as usize + 1);
     for (e, w) in gaussian_nodes(energy_ev, spread_ev) {
-        out.add_scaled(&impact_cross_sections_at(element, e)?, w);
+        out.add_scaled(&impact_cross_sections_at(element, e, relaxation)?, w);
     }
     Ok(out)
 }
@@ -167,6 +206,21 @@ pub fn appearance_curves(
     element: &'static Element,
     energies_ev: &[f64],
     energy_spread_ev: f64,
+) -> Result<Array2<f64>> {
+    appearance_curves_with(
+        element,
+        energies_ev,
+        energy_spread_ev,
+        Relaxation::default(),
+    )
+}
+
+/// [`appearance_curves`] with `relaxation`'s channels.
+pub fn appearance_curves_with(
+    element: &'static Element,
+    energies_ev: &[f64],
+    energy_spread_ev: f64,
+    relaxation: Relaxation,
 ) -> Result<Array2<f64>> {
     require_all_positive("energies_ev", energies_ev)?;
     require_non_negative("energy_spread_ev", energy_spread_ev)?;
@@ -182,7 +236,7 @@ pub fn appearance_curves(
             .par_iter()
             .map(|&e| {
                 crate::interrupt::check()?;
-                Ok(spread_cross_sections(element, e, energy_spread_ev)?.total_cm2())
+                Ok(spread_cross_sections(element, e, energy_spread_ev, relaxation)?.total_cm2())
             })
             .collect()
     });

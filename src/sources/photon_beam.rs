@@ -33,7 +33,7 @@ use crate::atoms::{Element, Subshell};
 use crate::error::{require_non_negative, require_positive, Error, Result};
 use crate::network::RateNetwork;
 use crate::processes::photoionization::subshell_cross_sections_cm2;
-use crate::processes::relaxation::vacancy_relaxation;
+use crate::processes::relaxation::{vacancy_relaxation_with, Relaxation};
 use crate::processes::vacancy_jumps::{nonzero_jumps, vacancy_jumps};
 use crate::solve::{evolve, steady_state};
 
@@ -70,6 +70,8 @@ pub struct PhotonBeam {
     pub photon_energy_ev: f64,
     pub flux_cm2_s: f64,
     pub bandwidth_ev: f64,
+    /// Relaxation channels of the vacancies the photons make (all by default).
+    pub relaxation: Relaxation,
 }
 
 impl PhotonBeam {
@@ -82,11 +84,21 @@ impl PhotonBeam {
             photon_energy_ev,
             flux_cm2_s,
             bandwidth_ev,
+            relaxation: Relaxation::default(),
         })
     }
 
+    /// The same beam with the vacancies relaxing through `relaxation`'s channels.
+    pub fn with_relaxation(mut self, relaxation: Relaxation) -> Self {
+        self.relaxation = relaxation;
+        self
+    }
+
     fn validated(&self) -> Result<Self> {
-        Self::new(self.photon_energy_ev, self.flux_cm2_s, self.bandwidth_ev)
+        Ok(
+            Self::new(self.photon_energy_ev, self.flux_cm2_s, self.bandwidth_ev)?
+                .with_relaxation(self.relaxation),
+        )
     }
 
     /// Photoionization cross section (cm²) of each occupied subshell of ion `charge`,
@@ -115,7 +127,12 @@ impl PhotonBeam {
             .subshell_cross_sections_cm2(element, charge)?
             .into_iter()
             .map(|(subshell, sigma)| (subshell, self.flux_cm2_s * sigma));
-        Ok(nonzero_jumps(vacancy_jumps(&ion, rates_per_subshell)?))
+        Ok(nonzero_jumps(vacancy_jumps(
+            &ion,
+            self.relaxation,
+            self.photon_energy_ev,
+            rates_per_subshell,
+        )?))
     }
 
     /// Charge-state fractions [times, Z+1] of atoms that start as `initial_charge` at t = 0.
@@ -244,6 +261,15 @@ pub fn photon_thresholds(
     element: &'static Element,
     photon_energy_ev: f64,
 ) -> Result<Vec<ChargeThreshold>> {
+    photon_thresholds_with(element, photon_energy_ev, Relaxation::default())
+}
+
+/// [`photon_thresholds`] with the vacancies relaxing through `relaxation`'s channels.
+pub fn photon_thresholds_with(
+    element: &'static Element,
+    photon_energy_ev: f64,
+    relaxation: Relaxation,
+) -> Result<Vec<ChargeThreshold>> {
     require_positive("photon_energy_ev", photon_energy_ev)?;
     let neutral = element.ion(0)?;
     let ies = element.ionization_energies_ev();
@@ -278,6 +304,8 @@ pub fn photon_thresholds(
     }
     let per_charge_cm2 = vacancy_jumps(
         &neutral,
+        relaxation,
+        photon_energy_ev,
         sigma.iter().map(|s| (s.subshell, s.cross_section_cm2)),
     )?;
     for entry in out.iter_mut() {
@@ -290,7 +318,7 @@ pub fn photon_thresholds(
         if sig.cross_section_cm2.is_nan() || sig.cross_section_cm2 <= 0.0 {
             continue;
         }
-        let yields = vacancy_relaxation(&neutral, s.subshell)?;
+        let yields = vacancy_relaxation_with(&neutral, s.subshell, relaxation, photon_energy_ev)?;
         for (k, &p) in yields.iter().enumerate() {
             if let Some(entry) = out.get_mut(k).filter(|_| p > 0.0) {
                 entry.routes.push(ThresholdRoute {
