@@ -11,6 +11,7 @@
 //! abundances (via mendeleev).
 
 pub mod binding;
+mod molecule;
 mod element;
 mod isotope;
 mod species;
@@ -20,7 +21,14 @@ mod xray;
 
 pub use element::{all_elements, element, element_by_z, Element, EnergyKind};
 pub use isotope::Isotope;
-pub use species::{isotope_label, parse_species, resolve_isotope, split_species, Species};
+pub use molecule::{
+    bundled_molecules, bundled_pattern, isotopologue_ion_mass_u, Isotopologue, Molecule,
+    MoleculeData, PatternEntry,
+};
+pub use species::{
+    isotope_label, molecule_not_atom, parse_species, parse_substance, resolve_isotope,
+    split_species, Formula, FormulaPart, Species, Substance, MAX_FORMULA_ATOMS,
+};
 pub use subshell::{Configuration, Subshell};
 pub use xray::{edge_binding_ev, neutral_photoabsorption, XrayLevel};
 
