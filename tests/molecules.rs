@@ -1,7 +1,11 @@
 //! Molecules through the one species parser, and molecular lines on the m/z axis.
 
-use chargecast::atoms::{element, parse_species, parse_substance, split_species, Molecule, Substance};
-use chargecast::spectrum::{aq_lines, overlaps, resolve_isotope, OverlapSettings, PeakShape, SpeciesInput};
+use chargecast::atoms::{
+    element, parse_species, parse_substance, split_species, Molecule, Substance,
+};
+use chargecast::spectrum::{
+    aq_lines, overlaps, resolve_isotope, OverlapSettings, PeakShape, SpeciesInput,
+};
 use proptest::prelude::*;
 
 fn singly(spec: &str) -> SpeciesInput {
@@ -67,7 +71,12 @@ fn a_molecule_is_refused_where_an_atom_is_needed() {
 
 /// Element symbols written as chemists do, and counts.
 fn symbol() -> impl Strategy<Value = String> {
-    (1i64..=103).prop_map(|z| chargecast::atoms::element_by_z(z).unwrap().symbol().to_string())
+    (1i64..=103).prop_map(|z| {
+        chargecast::atoms::element_by_z(z)
+            .unwrap()
+            .symbol()
+            .to_string()
+    })
 }
 
 proptest! {

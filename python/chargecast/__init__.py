@@ -66,6 +66,10 @@ from chargecast.photon_beam import (
     vacancy_relaxation,
 )
 
+# --- molecules: formulas, isotopologues, ionization energies, fragmentation patterns
+# isort: split
+from chargecast._core import Molecule, MoleculeYields, molecule
+
 # --- spectrum: masses, A/q lines, overlaps
 # isort: split
 from chargecast.spectrum import (
@@ -141,4 +145,8 @@ __all__ = [
     "Scenario",
     "bundled_scenarios",
     "load_scenario",
+    # molecules
+    "Molecule",
+    "MoleculeYields",
+    "molecule",
 ]

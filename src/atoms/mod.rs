@@ -11,9 +11,9 @@
 //! abundances (via mendeleev).
 
 pub mod binding;
-mod molecule;
 mod element;
 mod isotope;
+mod molecule;
 mod species;
 mod subshell;
 pub(crate) mod table;

@@ -60,7 +60,10 @@ struct Tables {
 fn formula_of(name: &str, text: &str) -> Result<Formula> {
     match read_exact(text) {
         Some(Ok(Substance::Molecule(f))) => Ok(f),
-        _ => Err(table::corrupt(name, format!("{text:?} is not a molecular formula"))),
+        _ => Err(table::corrupt(
+            name,
+            format!("{text:?} is not a molecular formula"),
+        )),
     }
 }
 
@@ -70,7 +73,15 @@ fn read_tables() -> Result<Tables> {
     for row in table::rows(
         M,
         MOLECULES_CSV,
-        &["formula", "name", "ie1_ev", "ie1_uncertainty_ev", "ie1_source", "ie2_ev", "ie2_source"],
+        &[
+            "formula",
+            "name",
+            "ie1_ev",
+            "ie1_uncertainty_ev",
+            "ie1_source",
+            "ie2_ev",
+            "ie2_source",
+        ],
     )? {
         let mut ies = Vec::new();
         let mut unc = Vec::new();
@@ -96,7 +107,14 @@ fn read_tables() -> Result<Tables> {
     for row in table::rows(
         F,
         FRAGMENTS_CSV,
-        &["molecule", "ion", "charge", "relative_intensity", "relative_uncertainty", "source"],
+        &[
+            "molecule",
+            "ion",
+            "charge",
+            "relative_intensity",
+            "relative_uncertainty",
+            "source",
+        ],
     )? {
         let key = formula_of(F, row[0])?.composition();
         let entry = PatternEntry {
@@ -111,12 +129,18 @@ fn read_tables() -> Result<Tables> {
             None => patterns.push((key, vec![entry])),
         }
     }
-    Ok(Tables { molecules, patterns })
+    Ok(Tables {
+        molecules,
+        patterns,
+    })
 }
 
 fn tables() -> Result<&'static Tables> {
     static TABLES: OnceLock<Result<Tables>> = OnceLock::new();
-    TABLES.get_or_init(read_tables).as_ref().map_err(Clone::clone)
+    TABLES
+        .get_or_init(read_tables)
+        .as_ref()
+        .map_err(Clone::clone)
 }
 
 /// Every bundled molecule.
@@ -242,7 +266,8 @@ impl Molecule {
 
     /// First (and where known second) ionization energy (eV); empty when not bundled.
     pub fn ionization_energies_ev(&self) -> &'static [f64] {
-        self.data.map_or(&[], |d| d.ionization_energies_ev.as_slice())
+        self.data
+            .map_or(&[], |d| d.ionization_energies_ev.as_slice())
     }
 
     pub fn ionization_uncertainties_ev(&self) -> &'static [f64] {
@@ -298,7 +323,10 @@ impl Molecule {
                             continue;
                         }
                         let mut k = key.clone();
-                        match k.iter_mut().find(|(z, a, _)| *z == iso.z && *a == iso.mass_number) {
+                        match k
+                            .iter_mut()
+                            .find(|(z, a, _)| *z == iso.z && *a == iso.mass_number)
+                        {
                             Some(entry) => entry.2 += 1,
                             None => {
                                 k.push((iso.z, iso.mass_number, 1));
@@ -343,10 +371,14 @@ impl Molecule {
         for p in self.formula.parts() {
             let iso = match p.mass_number {
                 Some(a) => p.element.isotope(a)?,
-                None => *p.element.natural_isotopes().first().ok_or_else(|| Error::NoData {
-                    what: format!("natural isotopes of {}", p.element.symbol()),
-                    why: "write the isotope in the formula".into(),
-                })?,
+                None => *p
+                    .element
+                    .natural_isotopes()
+                    .first()
+                    .ok_or_else(|| Error::NoData {
+                        what: format!("natural isotopes of {}", p.element.symbol()),
+                        why: "write the isotope in the formula".into(),
+                    })?,
             };
             m += iso.mass_u * p.count as f64;
         }
@@ -411,6 +443,9 @@ mod tests {
     #[test]
     fn elements_are_not_molecules() {
         assert!(Molecule::parse("Co").is_err());
-        assert!(Molecule::parse("Tc2").is_err() || Molecule::parse("Tc2").unwrap().isotopologues().is_err());
+        assert!(
+            Molecule::parse("Tc2").is_err()
+                || Molecule::parse("Tc2").unwrap().isotopologues().is_err()
+        );
     }
 }

@@ -68,7 +68,6 @@ pub fn isotope_label(isotope: &Isotope) -> String {
     format!("{}{}", isotope.mass_number, symbol)
 }
 
-
 /// `count` atoms of one element, all of one isotope when `mass_number` is given (else in
 /// the natural isotopic mix).
 #[derive(Clone, Copy, Debug)]
@@ -248,10 +247,9 @@ fn ambiguous(spec: &str, readings: &[String]) -> Error {
 
 /// An element by symbol or name with case ignored (the old lookup, for rule 3).
 fn element_ignoring_case(letters: &str) -> Option<&'static Element> {
-    super::all_elements()
-        .ok()?
-        .iter()
-        .find(|e| e.symbol().eq_ignore_ascii_case(letters) || e.name().eq_ignore_ascii_case(letters))
+    super::all_elements().ok()?.iter().find(|e| {
+        e.symbol().eq_ignore_ascii_case(letters) || e.name().eq_ignore_ascii_case(letters)
+    })
 }
 
 /// A symbol exactly as written, with the implied mass number of "D" and "T".
@@ -260,7 +258,10 @@ fn symbol_exact(symbol: &str) -> Option<(&'static Element, Option<u32>)> {
     match symbol {
         "D" => elements.first().map(|h| (h, Some(2))),
         "T" => elements.first().map(|h| (h, Some(3))),
-        _ => elements.iter().find(|e| e.symbol() == symbol).map(|e| (e, None)),
+        _ => elements
+            .iter()
+            .find(|e| e.symbol() == symbol)
+            .map(|e| (e, None)),
     }
 }
 
@@ -377,7 +378,9 @@ pub(super) fn read_exact(s: &str) -> Option<Result<Substance>> {
         return Some(match t.count {
             None | Some(1) => atom(p.element, p.mass_number),
             // "Kr84", "He3": a mass number after a bare symbol (never for hydrogen).
-            Some(n) if t.mass.is_none() && !t.paren && p.mass_number.is_none() && z > 1 && n >= z => {
+            Some(n)
+                if t.mass.is_none() && !t.paren && p.mass_number.is_none() && z > 1 && n >= z =>
+            {
                 atom(p.element, Some(n))
             }
             Some(_) => molecule_of(parts),
@@ -416,7 +419,11 @@ fn molecule_of(written: Vec<FormulaPart>) -> Result<Substance> {
 /// those that read exactly as molecules), at most a handful.
 fn formula_readings(s: &str) -> Vec<String> {
     const MAX_READINGS: usize = 8;
-    if s.len() > 40 || !s.bytes().all(|c| c.is_ascii_alphanumeric() || c == b'(' || c == b')') {
+    if s.len() > 40
+        || !s
+            .bytes()
+            .all(|c| c.is_ascii_alphanumeric() || c == b'(' || c == b')')
+    {
         return Vec::new();
     }
     let lower = s.to_ascii_lowercase();
@@ -478,7 +485,9 @@ fn read_ignoring_case(spec: &str, s: &str) -> Result<Substance> {
         && tail.chars().all(|c| c.is_ascii_digit())
         && !(hyphen && tail.is_empty())
         && !(hyphen && !lead.is_empty());
-    let atom_reading: Option<Result<Substance>> = if !shape_ok || (!lead.is_empty() && !tail.is_empty()) {
+    let atom_reading: Option<Result<Substance>> = if !shape_ok
+        || (!lead.is_empty() && !tail.is_empty())
+    {
         None
     } else {
         match element_ignoring_case(&letters) {
@@ -510,14 +519,18 @@ fn read_ignoring_case(spec: &str, s: &str) -> Result<Substance> {
         formula_readings(s)
     };
     let formula_text = |fs: &[String]| -> Vec<String> {
-        fs.iter().map(|f| format!("the molecule {f} (write {f:?})")).collect()
+        fs.iter()
+            .map(|f| format!("the molecule {f} (write {f:?})"))
+            .collect()
     };
     match (atom_reading, formulas.is_empty()) {
         (Some(Ok(a)), true) => Ok(a),
         (Some(Ok(Substance::Atom(sp))), false) => {
             let e = sp.element();
             let mut readings = vec![match sp {
-                Species::Isotope(_, iso) => format!("{} (write {:?})", e.name(), isotope_label(iso)),
+                Species::Isotope(_, iso) => {
+                    format!("{} (write {:?})", e.name(), isotope_label(iso))
+                }
                 Species::Natural(_) => format!("{} (write {:?})", e.name(), e.symbol()),
             }];
             readings.extend(formula_text(&formulas));
@@ -682,7 +695,10 @@ mod tests {
             ("no", "nobelium", "NO"),
         ] {
             let err = parse_substance(spec).unwrap_err().to_string();
-            assert!(err.to_lowercase().contains(a) && err.contains(b), "{spec}: {err}");
+            assert!(
+                err.to_lowercase().contains(a) && err.contains(b),
+                "{spec}: {err}"
+            );
         }
         // Only a formula reading, but in the wrong case.
         for (spec, want) in [("h2o", "H2O"), ("n2", "N2"), ("h2", "H2"), ("ch4", "CH4")] {
@@ -699,14 +715,19 @@ mod tests {
 
     #[test]
     fn molecules_never_resolve_to_elements() {
-        for spec in ["CO", "H2", "N2", "H2O", "CO2", "13CO", "D2O", "HD", "(15N)2", "CH4"] {
+        for spec in [
+            "CO", "H2", "N2", "H2O", "CO2", "13CO", "D2O", "HD", "(15N)2", "CH4",
+        ] {
             let err = parse_species(spec).unwrap_err().to_string();
             assert!(err.contains("formula of"), "{spec}: {err}");
             assert!(element(spec).is_err(), "{spec}");
             assert!(split_species(spec).is_err(), "{spec}");
         }
         let err = element("CO").unwrap_err().to_string();
-        assert!(err.contains("carbon monoxide") && err.contains("\"Co\""), "{err}");
+        assert!(
+            err.contains("carbon monoxide") && err.contains("\"Co\""),
+            "{err}"
+        );
     }
 
     #[test]

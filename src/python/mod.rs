@@ -12,6 +12,7 @@ mod energy_scan;
 mod errors;
 mod evolution;
 mod limits;
+mod molecules;
 mod photon_beam;
 mod plan;
 mod rate_equations;
@@ -40,5 +41,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     plan::register(m)?;
     limits::register(m)?;
     trap_dynamics::register(m)?;
+    molecules::register(m)?;
     Ok(())
 }

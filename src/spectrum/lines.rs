@@ -381,7 +381,12 @@ mod tests {
         co[1] = 1.0;
         let mut n = vec![0.0; 8];
         n[1] = 1.0;
-        let list = aq_lines(&[input("CO", 1.0, co.clone()), input("Co", 1.0, vec![0.0; 28]), input("N", 1.0, n)]).unwrap();
+        let list = aq_lines(&[
+            input("CO", 1.0, co.clone()),
+            input("Co", 1.0, vec![0.0; 28]),
+            input("N", 1.0, n),
+        ])
+        .unwrap();
         let main = list
             .lines()
             .iter()
@@ -392,7 +397,12 @@ mod tests {
         assert_eq!(main.label(), "(12C)(16O)1+");
         // 12C16O+ = 12 + 15.994914619 − mₑ (AME2020 via the isotope table).
         assert!((main.mass_u - (12.0 + 15.994_914_619_26 - 5.485_799_090_65e-4)).abs() < 1e-9);
-        let total: f64 = list.lines().iter().filter(|l| l.z == 0).map(|l| l.intensity).sum();
+        let total: f64 = list
+            .lines()
+            .iter()
+            .filter(|l| l.z == 0)
+            .map(|l| l.intensity)
+            .sum();
         assert!((total - 1.0).abs() < 1e-4, "{total}");
         assert!(list.find(7, 14, 1).is_some());
         // A molecular line rebuilt from its columns is the same line.
