@@ -54,6 +54,18 @@ fn molecule(formula: &Bound<'_, PyAny>) -> PyResult<PyMolecule> {
 /// A molecule: composition, masses (u), isotopologue pattern and, for the bundled gases,
 /// name, ionization energies (eV) with their sources and the 70 eV fragmentation pattern.
 /// Made by :func:`molecule`.
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> h2o = cc.molecule("H2O")
+/// >>> float(h2o.ionization_energies_ev[0]), h2o.composition
+/// (12.621, [('H', 2), ('O', 1)])
+/// >>> iso = h2o.isotopologues()
+/// >>> iso["label"][0], round(float(iso["abundance"][0]), 4)
+/// ('(1H)2(16O)', 0.9973)
+/// >>> round(h2o.ion_mass_u(1), 6)  # 1H2 16O+: atomic masses − mₑ
+/// 18.010016
 #[pyclass(name = "Molecule", module = "chargecast", frozen)]
 pub(crate) struct PyMolecule {
     inner: Molecule,
@@ -216,6 +228,16 @@ impl PyMolecule {
 
 /// Parent and fragment ions of one electron collision with a molecule. Made by
 /// ``ElectronImpactSource.molecule_yields``.
+///
+/// Examples
+/// --------
+/// >>> import chargecast as cc
+/// >>> y = cc.ElectronImpactSource(energy_ev=70.0).molecule_yields("CO")
+/// >>> y.ions, y.charges.tolist()
+/// (['CO', 'C', 'O'], [1, 1, 1])
+/// >>> sorted(y.species())
+/// ['C', 'CO', 'O']
+/// >>> lines = cc.aq_lines(y.species(), residual_gas={})  # the m/z spectrum of these ions
 #[pyclass(name = "MoleculeYields", module = "chargecast", frozen)]
 pub(crate) struct PyMoleculeYields {
     pub(crate) inner: MoleculeYields,

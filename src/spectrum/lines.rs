@@ -160,9 +160,13 @@ impl Line {
         format!("{}{}", self.mass_number, symbol)
     }
 
-    /// "84Kr26+".
+    /// "84Kr26+"; for a molecular ion the isotopologue, a space and the charge:
+    /// "(12C)(16O) 1+".
     pub fn label(&self) -> String {
-        format!("{}{}+", self.isotope_label(), self.charge)
+        match &self.formula {
+            Some(f) => format!("{f} {}+", self.charge),
+            None => format!("{}{}+", self.isotope_label(), self.charge),
+        }
     }
 
     pub(crate) fn is(&self, z: u32, mass_number: u32, charge: u32) -> bool {
@@ -394,7 +398,7 @@ mod tests {
             .unwrap();
         assert_eq!((main.z, main.mass_number, main.charge), (0, 28, 1));
         assert!(main.intensity > 0.98 && main.intensity < 0.99);
-        assert_eq!(main.label(), "(12C)(16O)1+");
+        assert_eq!(main.label(), "(12C)(16O) 1+");
         // 12C16O+ = 12 + 15.994914619 − mₑ (AME2020 via the isotope table).
         assert!((main.mass_u - (12.0 + 15.994_914_619_26 - 5.485_799_090_65e-4)).abs() < 1e-9);
         let total: f64 = list

@@ -160,3 +160,14 @@ def test_no_formula_resolves_to_an_element(parts: list[tuple[str, int]]) -> None
     except cc.ChargecastError:
         return  # refused as ambiguous (capitals only, also an element): never an element
     assert sum(n for _, n in m.composition) >= 2
+
+
+def test_molecule_yields_example_runs() -> None:
+    # The method's docstring example (method docstrings are not collected by test_docs).
+    import doctest
+
+    doc = cc.ElectronImpactSource.molecule_yields.__doc__ or ""
+    test = doctest.DocTestParser().get_doctest(doc, {}, "molecule_yields", None, 0)
+    runner = doctest.DocTestRunner(optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)
+    runner.run(test)
+    assert runner.failures == 0 and test.examples
