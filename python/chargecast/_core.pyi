@@ -1023,6 +1023,7 @@ def _dynamic_system(
 
 # molecules
 def molecule(formula: str) -> Molecule: ...
+
 @final
 class Molecule:
     @property

@@ -481,10 +481,9 @@ fn read_ignoring_case(spec: &str, s: &str) -> Result<Substance> {
     let hyphen = after.starts_with('-');
     let tail = after.strip_prefix('-').unwrap_or(after);
     let is_name = letters.len() > 2 && element_ignoring_case(&letters).is_some();
-    let shape_ok = !letters.is_empty()
-        && tail.chars().all(|c| c.is_ascii_digit())
-        && !(hyphen && tail.is_empty())
-        && !(hyphen && !lead.is_empty());
+    // A hyphen sits between a symbol or name and a trailing mass number only.
+    let hyphen_ok = !hyphen || (!tail.is_empty() && lead.is_empty());
+    let shape_ok = !letters.is_empty() && tail.chars().all(|c| c.is_ascii_digit()) && hyphen_ok;
     let atom_reading: Option<Result<Substance>> = if !shape_ok
         || (!lead.is_empty() && !tail.is_empty())
     {

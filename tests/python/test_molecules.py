@@ -121,7 +121,9 @@ def test_aq_lines_takes_formulas() -> None:
     co = float(lines.m_over_q[list(lines.isotope).index("(12C)(16O)")])
     assert 2400 < n2 / abs(n2 - co) < 2600
     # Molecular lines interfere with an atomic target: 28Si+ sits 0.018 u below CO+.
-    report = cc.overlaps({"28Si": {1: 1.0}, "CO": {1: 1.0}}, target=("28Si", 1), resolving_power=1000, residual_gas={})
+    report = cc.overlaps(
+        {"28Si": {1: 1.0}, "CO": {1: 1.0}}, target=("28Si", 1), resolving_power=1000, residual_gas={}
+    )
     assert "(12C)(16O)" in [str(s) for s in report.isotope]
 
 
