@@ -187,7 +187,7 @@ impl PyMolecule {
     /// charge : int
     ///     1 … electrons.
     /// isotopologue : int, optional
-    ///     Index into :meth:`isotopologues` (default 0, the most abundant).
+    ///     Index into :meth:`isotopologues` (default None: 0, the most abundant).
     ///
     /// Returns
     /// -------
