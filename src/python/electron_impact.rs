@@ -86,8 +86,8 @@ impl PyElectronImpactSource {
     /// Parent and fragment ions of one collision with a molecule.
     ///
     /// The total ionization cross section is the additivity rule (sum of the atoms' Lotz
-    /// cross sections above the molecule's ionization energy; ±30 %, ±60 % for H-rich
-    /// molecules); it is split by a fragmentation pattern: the bundled 70 eV one (NIST
+    /// cross sections above the molecule's ionization energy; 1.25–1.6 times the
+    /// measured H2 and N2 totals at 100 eV); it is split by a fragmentation pattern: the bundled 70 eV one (NIST
     /// Chemistry WebBook EI spectra, from memory, 20–60 % per ion), or ``pattern``.
     ///
     /// Parameters
