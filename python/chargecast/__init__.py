@@ -67,6 +67,10 @@ from chargecast.photon_beam import (
     vacancy_relaxation,
 )
 
+# --- molecules: formulas, isotopologues, ionization energies, fragmentation patterns
+# isort: split
+from chargecast._core import Molecule, MoleculeYields, molecule
+
 # --- spectrum: masses, A/q lines, overlaps
 # isort: split
 from chargecast.spectrum import (
@@ -189,4 +193,8 @@ __all__ = [
     "TrapFitModel",
     "best_energy_band",
     "fit_charge_distribution",
+    # molecules
+    "Molecule",
+    "MoleculeYields",
+    "molecule",
 ]

@@ -337,13 +337,14 @@ class LineList(_LineColumns):
         self._set_lines(d)
         return self
 
-    def _core_columns(self) -> tuple[list[int], list[int], list[int], list[float], list[bool]]:
+    def _core_columns(self) -> tuple[list[int], list[int], list[int], list[float], list[bool], list[str]]:
         return (
             self.z.tolist(),
             self.mass_number.tolist(),
             self.charge.tolist(),
             self.intensity.tolist(),
             self.residual.tolist(),
+            [str(s) for s in self.isotope],
         )
 
     def _title(self) -> str:

@@ -178,7 +178,8 @@ pub fn all_elements() -> Result<&'static [Element]> {
     }
 }
 
-/// Look an element up by symbol ("Kr"), name ("krypton") or atomic number ("36"), case-insensitive.
+/// Look an element up by symbol ("Kr"; any case where no formula could be meant, see
+/// [`super::species`]), name ("krypton", any case) or atomic number ("36").
 pub fn element(query: &str) -> Result<&'static Element> {
     let elements = all_elements()?;
     let q = query.trim();
@@ -189,10 +190,15 @@ pub fn element(query: &str) -> Result<&'static Element> {
     if let Ok(z) = q.parse::<i64>() {
         return element_by_z(z).map_err(|_| unknown());
     }
-    elements
-        .iter()
-        .find(|e| e.symbol.eq_ignore_ascii_case(q) || e.name.eq_ignore_ascii_case(q))
-        .ok_or_else(unknown)
+    // The one species parser decides, so a formula ("CO") never resolves to an element.
+    match super::species::parse_substance(q) {
+        Ok(super::species::Substance::Atom(super::species::Species::Natural(e))) => Ok(e),
+        Ok(super::species::Substance::Atom(super::species::Species::Isotope(..))) => Err(unknown()),
+        Ok(super::species::Substance::Molecule(f)) => {
+            Err(super::species::molecule_not_atom(query, &f))
+        }
+        Err(e) => Err(e),
+    }
 }
 
 /// Look an element up by atomic number.

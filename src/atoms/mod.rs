@@ -15,6 +15,7 @@ pub mod binding;
 pub mod decay;
 mod element;
 mod isotope;
+mod molecule;
 mod species;
 mod subshell;
 pub(crate) mod table;
@@ -23,7 +24,14 @@ mod xray;
 pub use decay::{Decay, DecayMode};
 pub use element::{all_elements, element, element_by_z, Element, EnergyKind};
 pub use isotope::Isotope;
-pub use species::{isotope_label, parse_species, resolve_isotope, split_species, Species};
+pub use molecule::{
+    bundled_molecules, bundled_pattern, isotopologue_ion_mass_u, Isotopologue, Molecule,
+    MoleculeData, PatternEntry,
+};
+pub use species::{
+    isotope_label, molecule_not_atom, parse_species, parse_substance, resolve_isotope,
+    split_species, Formula, FormulaPart, Species, Substance, MAX_FORMULA_ATOMS,
+};
 pub use subshell::{Configuration, Subshell};
 pub use xray::{edge_binding_ev, neutral_photoabsorption, XrayLevel};
 

@@ -59,3 +59,5 @@ pub(crate) const COSTER_KRONIG_CSV: &str = include_str!("../../data/coster_kroni
 pub(crate) const ISOTOPES_CSV: &str = include_str!("../../data/isotopes.csv");
 pub(crate) const DECAYS_CSV: &str = include_str!("../../data/decays.csv");
 pub(crate) const PHOTOABSORPTION_CSV: &str = include_str!("../../data/photoabsorption.csv");
+pub(crate) const MOLECULES_CSV: &str = include_str!("../../data/molecules.csv");
+pub(crate) const FRAGMENTS_CSV: &str = include_str!("../../data/fragments.csv");

@@ -12,6 +12,7 @@ mod energy_scan;
 mod errors;
 mod evolution;
 mod limits;
+mod molecules;
 mod photon_beam;
 mod plan;
 mod plasma;
@@ -49,5 +50,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     processes_indirect::register(m)?;
     plasma::register(m)?;
     uncertainty::register(m)?;
+    molecules::register(m)?;
     Ok(())
 }

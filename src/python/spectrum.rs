@@ -13,24 +13,38 @@ use crate::spectrum::{
     SpeciesInput,
 };
 
-/// The identifying columns of a line list: z, mass number, charge, intensity, residual flag.
-type Columns = (Vec<i64>, Vec<i64>, Vec<i64>, Vec<f64>, Vec<bool>);
+/// The identifying columns of a line list: z, mass number, charge, intensity, residual flag
+/// and the isotope label (read for molecular lines, z = 0).
+type Columns = (
+    Vec<i64>,
+    Vec<i64>,
+    Vec<i64>,
+    Vec<f64>,
+    Vec<bool>,
+    Vec<String>,
+);
 
 fn rebuild(columns: Columns) -> Result<LineList> {
-    let (z, a, q, intensity, residual) = columns;
+    let (z, a, q, intensity, residual, labels) = columns;
     let n = z.len();
-    if [a.len(), q.len(), intensity.len(), residual.len()]
-        .iter()
-        .any(|&m| m != n)
+    if [
+        a.len(),
+        q.len(),
+        intensity.len(),
+        residual.len(),
+        labels.len(),
+    ]
+    .iter()
+    .any(|&m| m != n)
     {
         return Err(Error::invalid(
             "lines",
             "columns of different lengths",
-            "z, mass_number, charge, intensity and residual must have one entry per line",
+            "z, mass_number, charge, intensity, residual and isotope must have one entry per line",
         ));
     }
     let lines = (0..n)
-        .map(|i| Line::new(z[i], a[i], q[i], intensity[i], residual[i]))
+        .map(|i| Line::from_columns(z[i], a[i], &labels[i], q[i], intensity[i], residual[i]))
         .collect::<Result<Vec<_>>>()?;
     LineList::new(lines)
 }
@@ -80,9 +94,13 @@ fn _ion_mass_u(isotope: &str, charge: i64) -> PyResult<f64> {
     Ok(ion_mass_u(resolve_isotope(isotope)?, charge)?)
 }
 
-/// (Z, symbol, isotope label or None for a natural mix) of a species specification.
+/// (Z, symbol, isotope label or None for a natural mix) of a species specification; for a
+/// molecule (its electrons, its formula, None).
 #[pyfunction]
 fn _species_info(spec: &str) -> PyResult<(u32, String, Option<String>)> {
+    if let crate::atoms::Substance::Molecule(f) = crate::atoms::parse_substance(spec)? {
+        return Ok((f.electrons(), f.label(), None));
+    }
     let s = parse_species(spec)?;
     let label = match s {
         crate::spectrum::Species::Isotope(_, iso) => Some(isotope_label(iso)),

@@ -20,8 +20,17 @@
 //! The relaxation includes shake-off and double Auger decay, and σ₃^direct is added, unless
 //! the source's [`Relaxation`] switches the multi-electron channels off (then the results
 //! are those of the one-electron cascade and σ₂^direct alone).
-//! Not included: direct quadruple and higher ionization, excitation–autoionization,
-//! ionization of molecules.
+//! Not included: direct quadruple and higher ionization, excitation–autoionization.
+//!
+//! # Molecules
+//!
+//! [`ElectronImpactSource::molecule_yields`]: one collision with a molecule makes its parent
+//! ion or a fragment ion. The total counting cross section is the additivity rule of
+//! [`crate::processes::molecular_ionization`] (averaged over the energy spread), split by a
+//! fragmentation pattern: the bundled 70 eV pattern of `data/fragments.csv` (NIST Chemistry
+//! WebBook EI spectra, from memory, 20–60 % per ion) or the user's. Without either, every
+//! ionization gives the parent ion. Fragments of an isotopically labelled parent ("13CO")
+//! keep its isotopes where an element has only one.
 //!
 //! The sum Σ_s σ_s P_s(c − 1) is [`crate::processes::vacancy_jumps`].
 //!
@@ -37,13 +46,14 @@
 use ndarray::Array2;
 use rayon::prelude::*;
 
-use crate::atoms::Element;
-use crate::error::{require_all_positive, require_non_negative, require_positive, Result};
+use crate::atoms::{parse_substance, Element, Formula, Molecule, Substance};
+use crate::error::{require_all_positive, require_non_negative, require_positive, Error, Result};
 use crate::processes::double_ionization::{
     direct_double_ionization_cm2, direct_triple_ionization_cm2,
 };
 use crate::processes::ion_lotz::ion_lotz_shells;
 use crate::processes::lotz::lotz_subshell_cross_section_cm2;
+use crate::processes::molecular_ionization::additivity_cross_section_cm2;
 use crate::processes::relaxation::Relaxation;
 use crate::processes::vacancy_jumps::vacancy_jumps;
 use crate::sources::photon_beam::gaussian_nodes;
@@ -187,6 +197,167 @@ impl ElectronImpactSource {
     }
 }
 
+/// One ion that a collision with a molecule makes.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FragmentYield {
+    /// The ion's species string ("CO", "O", "(13C)O"), as the species parser reads it.
+    pub ion: String,
+    pub charge: u32,
+    /// Partial cross section (cm²).
+    pub cross_section_cm2: f64,
+    /// Share of all ions made (sums to 1 over the fragments, or all 0 below threshold).
+    pub share: f64,
+    /// Relative uncertainty of the pattern entry (NaN for a user pattern).
+    pub relative_uncertainty: f64,
+}
+
+/// The ions one collision with a molecule makes, at the source's energy.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MoleculeYields {
+    pub molecule: String,
+    /// Total counting ionization cross section (cm²).
+    pub total_cm2: f64,
+    pub fragments: Vec<FragmentYield>,
+    /// Where the pattern comes from.
+    pub pattern_source: String,
+}
+
+/// A fragment of `parent` as its species string, with the parent's isotopes where an element
+/// of the parent is all one isotope; checked to hold no more atoms than the parent.
+fn fragment_of(parent: &Formula, ion: &str, charge: u32) -> Result<String> {
+    let (composition, label) = match parse_substance(ion)? {
+        Substance::Molecule(f) => (f.composition(), f.label()),
+        Substance::Atom(a) => {
+            let e = a.element();
+            (
+                std::iter::once((e.z(), 1)).collect(),
+                ion.trim().to_string(),
+            )
+        }
+    };
+    let parent_atoms = parent.composition();
+    let electrons: u32 = composition.iter().map(|(z, n)| z * n).sum();
+    for (z, n) in &composition {
+        if parent_atoms.get(z).is_none_or(|m| m < n) {
+            return Err(Error::invalid(
+                "pattern",
+                format!("{ion:?}"),
+                &format!("a fragment of {} holds only atoms of it", parent.label()),
+            ));
+        }
+    }
+    if charge < 1 || charge > electrons {
+        return Err(Error::invalid(
+            "pattern",
+            format!("{ion:?} at charge {charge}"),
+            &format!("charges of {ion} are 1..={electrons}"),
+        ));
+    }
+    // Carry a single isotope of the parent over to the fragment.
+    let mut out = String::new();
+    let mut relabelled = false;
+    for (z, n) in &composition {
+        let of_z: Vec<_> = parent
+            .parts()
+            .iter()
+            .filter(|p| p.element.z() == *z)
+            .collect();
+        let symbol = of_z.first().map_or("?", |p| p.element.symbol());
+        match of_z.as_slice() {
+            [one] if one.mass_number.is_some() => {
+                relabelled = true;
+                out.push_str(&format!("({}{symbol})", one.mass_number.unwrap_or(0)));
+            }
+            _ => out.push_str(symbol),
+        }
+        if *n > 1 {
+            out.push_str(&n.to_string());
+        }
+    }
+    Ok(if relabelled { out } else { label })
+}
+
+impl ElectronImpactSource {
+    /// Parent and fragment ions of one collision with `molecule`. `pattern`: the user's
+    /// (ion, charge, relative intensity) list; None takes the bundled pattern, or the parent
+    /// ion alone when none is bundled.
+    pub fn molecule_yields(
+        &self,
+        molecule: &Molecule,
+        pattern: Option<&[(String, u32, f64)]>,
+    ) -> Result<MoleculeYields> {
+        let me = Self::new(self.energy_ev, self.energy_spread_ev)?;
+        let mut total_cm2 = 0.0;
+        for (e, w) in gaussian_nodes(me.energy_ev, me.energy_spread_ev) {
+            total_cm2 += w * additivity_cross_section_cm2(molecule, e)?;
+        }
+        let parent = molecule.formula();
+        let (entries, pattern_source): (Vec<(String, u32, f64, f64)>, String) = match pattern {
+            Some(p) => (
+                p.iter()
+                    .map(|(i, q, r)| (i.clone(), *q, *r, f64::NAN))
+                    .collect(),
+                "user pattern".into(),
+            ),
+            None => match molecule.pattern() {
+                Some(b) => (
+                    b.iter()
+                        .map(|e| {
+                            (
+                                e.ion.clone(),
+                                e.charge,
+                                e.relative_intensity,
+                                e.relative_uncertainty,
+                            )
+                        })
+                        .collect(),
+                    b.first().map_or_else(String::new, |e| e.source.clone()),
+                ),
+                None => (
+                    vec![(parent.label(), 1, 1.0, f64::NAN)],
+                    "no pattern bundled: parent ion only".into(),
+                ),
+            },
+        };
+        if entries.is_empty() {
+            return Err(Error::invalid(
+                "pattern",
+                "[]",
+                "give at least one (ion, charge, relative intensity)",
+            ));
+        }
+        let mut sum = 0.0;
+        for (_, _, r, _) in &entries {
+            require_non_negative("relative intensity in the pattern", *r)?;
+            sum += r;
+        }
+        if sum <= 0.0 || !sum.is_finite() {
+            return Err(Error::invalid(
+                "pattern",
+                sum,
+                "the relative intensities must have a positive, finite sum",
+            ));
+        }
+        let mut fragments = Vec::with_capacity(entries.len());
+        for (ion, charge, r, unc) in entries {
+            let share = if total_cm2 > 0.0 { r / sum } else { 0.0 };
+            fragments.push(FragmentYield {
+                ion: fragment_of(parent, &ion, charge)?,
+                charge,
+                cross_section_cm2: total_cm2 * r / sum,
+                share,
+                relative_uncertainty: unc,
+            });
+        }
+        Ok(MoleculeYields {
+            molecule: molecule.label(),
+            total_cm2,
+            fragments,
+            pattern_source,
+        })
+    }
+}
+
 fn spread_cross_sections(
     element: &'static Element,
     energy_ev: f64,
@@ -284,6 +455,56 @@ mod tests {
         assert!(smeared.total_cm2()[1] > 0.0);
         assert!(ElectronImpactSource::new(70.0, -1.0).is_err());
         assert!(ElectronImpactSource::new(0.0, 0.0).is_err());
+    }
+
+    #[test]
+    fn molecules_give_parent_and_fragment_ions() {
+        let src = ElectronImpactSource::new(70.0, 0.5).unwrap();
+        let co2 = Molecule::parse("CO2").unwrap();
+        let y = src.molecule_yields(&co2, None).unwrap();
+        let shares: f64 = y.fragments.iter().map(|f| f.share).sum();
+        assert!((shares - 1.0).abs() < 1e-12);
+        let parent = &y.fragments[0];
+        assert_eq!((parent.ion.as_str(), parent.charge), ("CO2", 1));
+        assert!(
+            parent.share > 0.7 && parent.share < 0.85,
+            "{}",
+            parent.share
+        );
+        assert!(y.fragments.iter().any(|f| f.ion == "CO2" && f.charge == 2));
+        // Isotopes of a labelled parent carry over to the fragments.
+        let labelled = src
+            .molecule_yields(&Molecule::parse("13CO").unwrap(), None)
+            .unwrap();
+        assert!(
+            labelled.fragments.iter().any(|f| f.ion == "(13C)"),
+            "{labelled:?}"
+        );
+        // A user pattern; fragments must be parts of the parent.
+        let user = vec![("CO".to_string(), 1, 3.0), ("O".to_string(), 1, 1.0)];
+        let y = src.molecule_yields(&co2, Some(&user)).unwrap();
+        assert!((y.fragments[0].share - 0.75).abs() < 1e-12);
+        assert!(src
+            .molecule_yields(&co2, Some(&[("N2".to_string(), 1, 1.0)]))
+            .is_err());
+        assert!(src
+            .molecule_yields(&co2, Some(&[("CO".to_string(), 0, 1.0)]))
+            .is_err());
+        assert!(src
+            .molecule_yields(&co2, Some(&[("CO".to_string(), 1, -1.0)]))
+            .is_err());
+        assert!(src.molecule_yields(&co2, Some(&[])).is_err());
+        // Below the molecule's ionization energy nothing forms.
+        let low = ElectronImpactSource::new(13.0, 0.0)
+            .unwrap()
+            .molecule_yields(&co2, None)
+            .unwrap();
+        assert!(low.total_cm2 == 0.0 && low.fragments.iter().all(|f| f.share == 0.0));
+        // No bundled pattern: the parent alone.
+        let y = src
+            .molecule_yields(&Molecule::parse("C2H6").unwrap(), None)
+            .unwrap();
+        assert_eq!(y.fragments.len(), 1);
     }
 
     #[test]

@@ -7,6 +7,10 @@
 //! * Ion masses ([`ion_mass_u`], source file `masses.rs`): m_ion = m_atom(A) − q·m_e +
 //!   B_q/c², B_q = Σ_{j<q} IE_j; atomic masses AME2020 (Wang et al. 2021), ionization
 //!   energies NIST ASD, constants CODATA 2018. As accurate as those tables.
+//! * Molecular ions (`lines.rs`, [`crate::atoms::Molecule`]): one line per isotopologue,
+//!   mass Σ atomic masses − q·mₑ (electron binding, ~1.6×10⁻⁸ u per electron, neglected),
+//!   share from the multinomial isotopologue pattern; masses checked against `molmass`.
+//!   The m/z 28 doublet ¹⁴N₂⁺ / ¹²C¹⁶O⁺ needs R ≈ 2 500 (`tests/molecules.rs`).
 //! * Peaks ([`Peaks`], `peaks.rs`): FWHM = (m/q)/R, Gaussian, triangular or rectangular;
 //!   idealised instrument responses (common practice).
 //! * Overlaps ([`overlaps`], `overlaps.rs`): two peaks count as separated when their centres

@@ -59,6 +59,9 @@ def test_public_callables_have_examples(name, obj) -> None:
         cc.photon_thresholds,
         cc.photon_selectivity,
         cc.appearance_curves,
+        cc.molecule,
+        cc.Molecule,
+        cc.MoleculeYields,
     ],
 )
 def test_compiled_class_examples_run(cls) -> None:
