@@ -87,6 +87,7 @@ from chargecast.spectrum import (
 # --- radioactive-beam breeding cycle and residual-gas ions from pressures
 # isort: split
 from chargecast.rib import BreedingCycle, breeding_cycle, residual_gas_ions
+
 # --- indirect and resonant processes (excitation–autoionization, dielectronic recombination)
 # isort: split
 from chargecast.indirect import (
@@ -97,6 +98,8 @@ from chargecast.indirect import (
     excitation_autoionization_cross_section_cm2,
     excitation_autoionization_rate_coefficient_cm3_s,
     ionization_cross_section_cm2,
+)
+
 # --- plasma source and its rate coefficients
 # isort: split
 from chargecast.plasma import (
