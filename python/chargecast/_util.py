@@ -103,3 +103,10 @@ def inline_png(plot: Any, figsize: tuple[float, float] = (6.5, 3.6)) -> str:
 
 # Colour-blind-safe palette (Okabe & Ito 2008), used by every plot.
 PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F0E442", "#000000"]
+
+
+def require_type(name: str, value: Any, kind: Any, allowed: str) -> None:
+    """Raise ``ArgumentTypeError`` (a ``TypeError``) naming ``name`` unless ``value`` is a
+    ``kind``: the Python layer's one check for arguments the core does not see first."""
+    if not isinstance(value, kind) or isinstance(value, bool) and kind is not bool:
+        raise _core.ArgumentTypeError(f"invalid {name}: {type(value).__name__} given, must be {allowed}")

@@ -36,6 +36,7 @@ class BeamTrap(_core.BeamTrap):
         times_s: Any,
         initial_charge: Optional[int] = None,
         *,
+        rtol: Optional[float] = None,
         samples: Optional[int] = None,
         seed: int = 0,
         factors: Optional[Any] = None,
@@ -52,6 +53,8 @@ class BeamTrap(_core.BeamTrap):
             Output times (s), ascending, ≥ 0.
         initial_charge : int, optional
             Charge of the injected atoms or ions (0 = neutral atoms).
+        rtol : float, optional
+            Relative tolerance of the dynamic model's nonlinear solve (dynamic model only).
         samples : int, optional
             Number of Monte Carlo samples over the process uncertainty factors.
         seed : int
@@ -71,7 +74,11 @@ class BeamTrap(_core.BeamTrap):
         if samples is None:
             if factors is not None or client is not None:
                 raise _core.InvalidParameterError("invalid arguments: factors and client need samples=N")
-            return _core.BeamTrap.evolve(self, element, times_s, initial_charge)
+            return _core.BeamTrap.evolve(self, element, times_s, initial_charge, rtol=rtol)
+        if rtol is not None or self.model != "fixed":
+            raise _core.InvalidParameterError(
+                "invalid arguments: Monte Carlo bands (samples=N) are for the fixed model, without rtol"
+            )
         from chargecast.uncertainty import evolve_bands
 
         return evolve_bands(

@@ -34,7 +34,7 @@ from typing import Any, Optional
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import PALETTE, require_pyplot
+from chargecast._util import PALETTE, require_pyplot, require_type
 
 #: Parameters of the trap model, whether they are fitted in log10, and their unit.
 TRAP_PARAMETERS: dict[str, tuple[bool, str]] = {
@@ -135,6 +135,7 @@ class TrapFitModel:
     """
 
     def __init__(self, trap: Any, element: Any, time_s: float, initial_charge: int = 0):
+        require_type("trap", trap, _core.BeamTrap, "a BeamTrap")
         self.trap = trap
         el = _core.element(element)
         self.element = el.symbol
@@ -348,6 +349,11 @@ def fit_charge_distribution(
     >>> round(fit.parameters["current_density_a_cm2"])
     100
     """
+    if not (callable(getattr(model, "evaluate", None)) and callable(getattr(model, "parameters", None))):
+        raise _core.ArgumentTypeError(
+            f"invalid model: {type(model).__name__} given, must be a fit model such as TrapFitModel"
+        )
+    require_type("free", free, Mapping, "a dict {name: (low, high)}")
     try:
         from scipy.optimize import least_squares
     except ImportError as exc:  # pragma: no cover - exercised only without scipy

@@ -134,8 +134,8 @@ def vacancy_relaxation(
     >>> p = vacancy_relaxation("Ar", 0, "1s")
     >>> round(float(p.sum()), 12)
     1.0
-    >>> int(np.argmax(p)) + 1     # most probable final charge after a K hole in argon
-    4
+    >>> round(float(np.dot(np.arange(1, p.size + 1), p)), 1)  # mean charge after an argon K hole
+    4.3
     """
     return _core._vacancy_relaxation(element, _charge(charge), str(subshell), energy_ev, bool(multi_electron))
 

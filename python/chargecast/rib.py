@@ -8,7 +8,7 @@ from typing import Any, Optional, cast
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import require_pandas
+from chargecast._util import require_pandas, require_type
 
 
 class BreedingCycle(_core.BreedingCycle):
@@ -153,6 +153,9 @@ def breeding_cycle(
     >>> bool(abs(total / run.ions_per_bunch - 1.0) < 1e-9)
     True
     """
+    require_type("trap", trap, _core.BeamTrap, "a BeamTrap")
+    require_type("isotope", isotope, str, 'an isotope such as "97Rb"')
+    require_type("daughter_charge", daughter_charge, str, '"parent" or "electrons_kept"')
     # The core makes the result as the registered subclass above.
     out = _core.breeding_cycle(
         trap,

@@ -17,7 +17,7 @@ from typing import Any, Optional
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import PALETTE, require_pyplot
+from chargecast._util import PALETTE, require_pyplot, require_type
 from chargecast.evolution import Evolution
 
 #: 1-σ multiplicative factor of each process and the charge correlation when none is given.
@@ -91,6 +91,12 @@ class EvolutionBands:
     def __init__(
         self, nominal: Evolution, samples: np.ndarray, factors: dict[str, float], seed: int, trap: Any
     ):
+        require_type("nominal", nominal, Evolution, "an Evolution")
+        require_type("samples", samples, np.ndarray, "an array [samples, times, charges]")
+        if samples.ndim != 3 or not np.isfinite(samples).all():
+            raise _core.InvalidParameterError(
+                "invalid samples: must be a finite array [samples, times, charges]"
+            )
         self.nominal = nominal
         self.samples = samples
         self.factors = factors
@@ -241,6 +247,8 @@ def best_energy_band(
     >>> lo <= mid <= hi
     True
     """
+    require_type("trap", trap, _core.BeamTrap, "a BeamTrap")
+    require_type("samples", samples, (int, np.integer), "an int >= 1")
     q = _core._as_int("charge", charge)
     energies = np.asarray(_core._as_float_array("energies_ev", energies_ev), dtype=float).reshape(-1)
     best = np.full((samples, len(energies)), -np.inf)

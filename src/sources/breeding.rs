@@ -17,7 +17,7 @@
 
 use crate::atoms::Element;
 use crate::constants::ELEMENTARY_CHARGE_C;
-use crate::error::{require_all_positive, require_positive, Result};
+use crate::error::{require_all_positive, require_positive, Error, Result};
 use crate::processes::ion_lotz::{ionization_cross_sections_cm2, peak_energy_ev};
 use crate::processes::lotz::LotzConstants;
 
@@ -49,6 +49,14 @@ pub fn breeding_ladder(
     require_positive("current_density_a_cm2", current_density_a_cm2)?;
     element.check_charge(target_charge, element.z())?;
     let flux = current_density_a_cm2 / ELEMENTARY_CHARGE_C;
+    if !flux.is_finite() {
+        // Found by the long fuzz run: j = 1e308 A/cm² made j/e infinite and 0·∞ rates NaN.
+        return Err(Error::invalid(
+            "current_density_a_cm2",
+            current_density_a_cm2,
+            "must be small enough that the electron flux j/e is finite (below 1e289 A/cm²)",
+        ));
+    }
     let mut j_tau = 0.0;
     let mut steps = Vec::with_capacity(target_charge as usize);
     for q in 0..target_charge {
@@ -157,6 +165,16 @@ mod tests {
         };
         assert!((step(16) - 83.0).abs() < 2.0, "{}", step(16));
         assert!((step(17) - 193.0).abs() < 3.0, "{}", step(17));
+    }
+
+    #[test]
+    fn an_overflowing_electron_flux_is_refused() {
+        let ar = crate::atoms::element("Ar").unwrap();
+        assert!(breeding_ladder(ar, 13, 3.4, 1e308, None).is_err());
+        assert!(breeding_ladder(ar, 13, 3000.0, 1e4, None)
+            .unwrap()
+            .iter()
+            .all(|s| s.rate_per_s.is_finite()));
     }
 
     #[test]

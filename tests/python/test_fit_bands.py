@@ -89,12 +89,13 @@ def test_coverage_of_one_sigma_intervals():
 
 
 def test_unconstrained_parameter_is_flagged_with_a_scan():
-    # Fractions do not depend on the compensation (it sets only the ion count).
+    # Fractions hardly depend on the compensation: it sets the ion count, and only through
+    # the default energy spread (the space-charge width) the dielectronic resonance widths.
     q, f, s = synthetic(100.0, 3e-7)
     res = fit_once(q, f, s, {"current_density_a_cm2": (10.0, 3000.0), "compensation": (0.1, 0.9)})
     assert res.unconstrained == ["compensation"]
     values, chi2 = res.scans["compensation"]
-    assert len(values) == 21 and np.ptp(chi2) < 1e-6
+    assert len(values) == 21 and np.ptp(chi2) < 1e-4 * chi2.mean()
     assert "unconstrained" in repr(res)
 
 
