@@ -15,7 +15,8 @@ use crate::atoms::{element, split_species, Element, Isotope};
 use crate::error::{Error, Result};
 use crate::processes::gases::gas;
 use crate::sources::beam_trap::{
-    Processes, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
+    Processes, TrapModel, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K,
+    DEFAULT_ION_TEMPERATURE_EV,
 };
 use crate::sources::electron_beam::BeamSize;
 
@@ -135,6 +136,7 @@ impl Checker<'_, '_> {
         let species = self.species(raw.species, &target)?;
         let source = self.source(raw.beam_trap, raw.photon_beam, raw.electron_impact)?;
         let (residual_gas_pa, residual_elements) = self.residual_gas(raw.residual_gas_pa)?;
+        self.dynamic_rules(&source, &species)?;
         // The core source checks its own ranges (compensation, temperatures, beam size).
         self.build(&source, &residual_gas_pa)?;
         let time = self.time(raw.time, &source, &target)?;
@@ -439,7 +441,68 @@ impl Checker<'_, '_> {
             compensation: t.compensation.unwrap_or(DEFAULT_COMPENSATION),
             processes,
             drift_tube_radius_m: t.drift_tube_radius_m,
+            model: t.model.unwrap_or_else(|| TrapModel::NAMES[0].to_string()),
+            axial_barrier_v: t.axial_barrier_v,
+            gas_feed_pa: self.gas_feed(t.gas_feed_pa)?,
+            dynamic_processes: self.dynamic_processes(t.dynamic_processes)?,
+            injected_atoms: t
+                .injected_atoms
+                .map(|n| self.positive("beam_trap.injected_atoms", n, "atoms"))
+                .transpose()?,
         })
+    }
+
+    /// The gases fed into a dynamic trap: known formulas, pressures >= 0 (Pa).
+    fn gas_feed(&self, raw: Option<BTreeMap<String, f64>>) -> Result<Pairs> {
+        raw.unwrap_or_default()
+            .into_iter()
+            .map(|(name, p)| {
+                let path = format!("beam_trap.gas_feed_pa.{name}");
+                let g = self.wrap(&path, gas(&name))?;
+                Ok((g.formula.to_string(), self.non_negative(&path, p, "Pa")?))
+            })
+            .collect()
+    }
+
+    /// The dynamic processes by name, each one of the core's names.
+    fn dynamic_processes(&self, raw: Option<Vec<String>>) -> Result<Option<Vec<String>>> {
+        let Some(list) = raw else { return Ok(None) };
+        for (i, p) in list.iter().enumerate() {
+            if !DYNAMIC_PROCESSES.contains(&p.as_str()) {
+                return Err(self.err(
+                    &format!("beam_trap.dynamic_processes[{i}]"),
+                    format!(
+                        "unknown dynamic process {p:?}: allowed \"{}\"",
+                        DYNAMIC_PROCESSES.join("\", \"")
+                    ),
+                ));
+            }
+        }
+        Ok(Some(list))
+    }
+
+    /// What only the dynamic model takes: injected atoms (the builder refuses the other
+    /// dynamic fields with the fixed model), and species entering as neutral atoms.
+    fn dynamic_rules(&self, source: &SourceSettings, species: &[SpeciesEntry]) -> Result<()> {
+        let SourceSettings::BeamTrap(t) = source else {
+            return Ok(());
+        };
+        if !t.is_dynamic() {
+            if t.injected_atoms.is_some() {
+                return Err(self.err(
+                    "beam_trap.injected_atoms",
+                    "belongs to the ion-dynamics model: add model = \"dynamic\" (the fixed model works with fractions, not numbers of atoms)",
+                ));
+            }
+            return Ok(());
+        }
+        if let Some(i) = species.iter().position(|s| s.initial_charge != 0) {
+            return Err(self.err(
+                &format!("species[{i}].initial_charge"),
+                "the dynamic model injects neutral atoms into the beam: allowed 0 only",
+            ));
+        }
+        Ok(())
     }
 
     /// Build the core source: its constructors check the ranges of its settings, and an
