@@ -797,6 +797,74 @@ CO = 1e-8
     }
 
     #[test]
+    fn dynamic_settings_are_checked_where_written() {
+        let dynamic = GOOD.replace("length_m = 0.5", "length_m = 0.5\nmodel = \"dynamic\"");
+        let s = parse_scenario(&dynamic, "s.toml").unwrap();
+        let SourceSettings::BeamTrap(t) = &s.source else {
+            panic!("a beam trap")
+        };
+        assert!(t.is_dynamic() && t.gas_feed_pa.is_empty() && t.injected_atoms.is_none());
+        let m = message(&GOOD.replace("length_m = 0.5", "length_m = 0.5\nmodel = \"hot\""));
+        assert!(
+            m.contains("line 12") && m.contains("beam_trap.model") && m.contains("\"dynamic\""),
+            "{m}"
+        );
+        // The dynamic model's fields with the fixed model name the field and the remedy.
+        for (field, line) in [
+            ("gas_feed_pa = { N2 = 1e-9 }", "beam_trap.gas_feed_pa"),
+            ("axial_barrier_v = 50.0", "beam_trap.axial_barrier_v"),
+            (
+                "dynamic_processes = [\"heating\"]",
+                "beam_trap.dynamic_processes",
+            ),
+            ("injected_atoms = 1e6", "beam_trap.injected_atoms"),
+        ] {
+            let m = message(&GOOD.replace("length_m = 0.5", &format!("length_m = 0.5\n{field}")));
+            assert!(
+                m.contains("line 12")
+                    && m.contains(line)
+                    && (m.contains("model = \"dynamic\"") || m.contains("model=\"dynamic\"")),
+                "{m}"
+            );
+        }
+        let m = message(&dynamic.replace("model", "gas_feed_pa = { SF6 = 1e-9 }\nmodel"));
+        assert!(
+            m.contains("line 12") && m.contains("beam_trap.gas_feed_pa.SF6") && m.contains("N2"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "gas_feed_pa = { N2 = -1.0 }\nmodel"));
+        assert!(
+            m.contains("beam_trap.gas_feed_pa.N2") && m.contains(">= 0"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace(
+            "model",
+            "dynamic_processes = [\"heating\", \"cooling\"]\nmodel",
+        ));
+        assert!(
+            m.contains("beam_trap.dynamic_processes[1]") && m.contains("ionization_heating"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "injected_atoms = 0.0\nmodel"));
+        assert!(
+            m.contains("beam_trap.injected_atoms") && m.contains("> 0"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "drift_tube_radius_m = 1e-6\nmodel"));
+        assert!(
+            m.contains("beam_trap.drift_tube_radius_m") && m.contains("beam radius"),
+            "{m}"
+        );
+        let m = message(&format!(
+            "{dynamic}\n[[species]]\nname = \"Ar\"\ninitial_charge = 1\n"
+        ));
+        assert!(
+            m.contains("species[0].initial_charge") && m.contains("neutral"),
+            "{m}"
+        );
+    }
+
+    #[test]
     fn syntax_errors_give_the_line() {
         let m = message("[target]\nisotope = \"40Ar\n");
         assert!(m.contains("line 2"), "{m}");

@@ -14,6 +14,7 @@ mod evolution;
 mod limits;
 mod photon_beam;
 mod plan;
+mod plan_dynamics;
 mod rate_equations;
 mod results;
 mod spectrum;
@@ -40,5 +41,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     plan::register(m)?;
     limits::register(m)?;
     trap_dynamics::register(m)?;
+    plan_dynamics::register(m)?;
     Ok(())
 }
