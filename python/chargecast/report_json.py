@@ -255,7 +255,8 @@ def _dynamics(d: Any) -> dict[str, Any]:
         "target_species": d.target_species,
         "extraction_time_s": d.extraction_time_s,
         "target_and_neighbours": [
-            _fields(row, ("charge", "ions", "temperature_ev", "overlap", "escape_per_s")) for row in d.target_rows
+            _fields(row, ("charge", "ions", "temperature_ev", "overlap", "escape_per_s"))
+            for row in d.target_rows
         ],
         "species": [
             _fields(sp, ("label", "fed_only", "ions", "mean_charge", "mean_temperature_ev", "escape_per_s"))

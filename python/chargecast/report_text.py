@@ -142,7 +142,8 @@ class _TextReport:
         if d is not None:
             feed = ", ".join(f"{k} {v:.3g} Pa" for k, v in d.gas_feed_pa.items()) or "none"
             out.append(
-                f"  axial barrier {d.axial_barrier_v:.4g} V, drift tube radius {d.drift_tube_radius_m * 1e3:.4g} mm, "
+                f"  axial barrier {d.axial_barrier_v:.4g} V, "
+                f"drift tube radius {d.drift_tube_radius_m * 1e3:.4g} mm, "
                 f"{d.injected_atoms:.3e} atoms injected at t = 0; gas fed: {feed}"
             )
             out.append("  dynamic processes on: " + (", ".join(d.processes) or "none"))
@@ -419,12 +420,14 @@ class _TextReport:
         target_row = next((row for row in d.target_rows if row.charge == q), None)
         out = [
             "",
-            f"Ion dynamics at {d.extraction_time_s:.4g} s (the extraction time): {t.symbol}{q}+ and its neighbours",
+            f"Ion dynamics at {d.extraction_time_s:.4g} s (the extraction time): "
+            f"{t.symbol}{q}+ and its neighbours",
             *_table(header, rows),
             "",
             "  species in the trap",
             *_table(["species", "ions", "mean charge", "mean kT (eV)", "escape (ions/s)"], species),
-            f"  compensation {d.compensation:.3g} of the electrons' charge; radial well depth {d.well_depth_v:.4g} V",
+            f"  compensation {d.compensation:.3g} of the electrons' charge; "
+            f"radial well depth {d.well_depth_v:.4g} V",
         ]
         if target_row is not None:
             out.append(
