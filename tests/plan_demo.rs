@@ -121,3 +121,71 @@ fn the_coolant_raises_the_targets_fraction() {
         hot.1
     );
 }
+
+/// A small dynamic scenario (neon with a nitrogen feed) runs in a debug build: the report
+/// names its model, carries the dynamic part, and its ions per extraction and A/q lines
+/// follow from the trapped ion numbers.
+#[test]
+fn a_small_dynamic_scenario_reports_its_dynamics() {
+    let text = r#"
+[target]
+isotope = "20Ne"
+charge = 8
+[beam_trap]
+energy_ev = 3000.0
+current_a = 0.05
+current_density_a_cm2 = 500.0
+length_m = 0.3
+ion_temperature_ev = 1.0
+model = "dynamic"
+injected_atoms = 1e6
+gas_feed_pa = { N2 = 1e-9 }
+[time]
+start_s = 1e-4
+stop_s = 0.05
+points = 12
+[energy_scan]
+points = 4
+"#;
+    let s = parse_scenario(text, "neon.toml").unwrap();
+    let r = run(&s, &mut |_, _, _| {}).unwrap();
+    assert_eq!(r.model(), "dynamic");
+    let d = r.dynamics.as_ref().unwrap();
+    assert_eq!(d.target_species, "20Ne");
+    assert_eq!(
+        d.target_rows.iter().map(|x| x.charge).collect::<Vec<_>>(),
+        vec![6, 7, 8, 9, 10]
+    );
+    assert!(d.run.bookkeeping.particle_balance < 1e-9);
+    let t_ex = r.extraction.unwrap().0;
+    assert_eq!(d.extraction_s, t_ex);
+    let row = d.target_rows.iter().find(|x| x.charge == 8).unwrap();
+    let ions = r.ions.as_ref().unwrap();
+    assert!((ions.target - row.ions * ions.isotope_share).abs() <= 1e-12 * ions.target);
+    assert_eq!(ions.per_charge[0], 0.0, "neutral atoms are not extracted");
+    // The fed nitrogen is a species of the run and has lines on the A/q axis.
+    assert!(d.species_rows.iter().any(|x| x.label == "N" && x.fed_only));
+    assert!(r
+        .lines
+        .lines()
+        .iter()
+        .any(|l| l.z == 7 && l.residual && l.intensity > 0.0));
+    assert!(r.notes.iter().any(|n| n.contains("fixed model")));
+    // The fixed model of the same trap has no dynamic part and names itself.
+    let fixed = text
+        .lines()
+        .filter(|l| {
+            !["model", "injected_atoms", "gas_feed_pa"]
+                .iter()
+                .any(|k| l.starts_with(k))
+        })
+        .collect::<Vec<_>>()
+        .join("\n");
+    let r = run(
+        &parse_scenario(&fixed, "fixed.toml").unwrap(),
+        &mut |_, _, _| {},
+    )
+    .unwrap();
+    assert_eq!(r.model(), "fixed");
+    assert!(r.dynamics.is_none());
+}

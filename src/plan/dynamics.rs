@@ -18,6 +18,7 @@ use crate::error::{Error, Result};
 use crate::solve::evolution::interpolate;
 use crate::sources::trap_dynamics::{DynamicRun, SpeciesHistory};
 use crate::sources::BeamTrap;
+use crate::spectrum::SpeciesInput;
 use ndarray::{Array1, Array2};
 
 /// Neighbours of the target charge shown in the report and its figure (each side).
@@ -256,4 +257,31 @@ pub(crate) fn ions_per_extraction(
         all_charges: per.iter().sum(),
         per_charge: per,
     })
+}
+
+/// The species of the A/q spectrum with the dynamic model: every species in the trap at
+/// `t_ex` (fed gases included, marked like residual gas), its amount the particles still
+/// trapped in the scenario's amount unit (`Σ amount` per injected atom), so that escaped
+/// ions are not counted as extracted and the fed gases' ions stand beside the target.
+pub(crate) fn spectrum_inputs(s: &Scenario, d: &DynamicReport) -> Vec<SpeciesInput> {
+    let unit = s.species.iter().map(|sp| sp.amount).sum::<f64>() / d.injected_atoms;
+    let times = &d.run.times_s;
+    d.run
+        .species
+        .iter()
+        .map(|h| {
+            let n = at(times, &h.ions, d.extraction_s);
+            let total: f64 = n.iter().sum();
+            SpeciesInput {
+                spec: h.label.clone(),
+                amount: total * unit,
+                fractions: if total > 0.0 {
+                    n.iter().map(|v| v / total).collect()
+                } else {
+                    n
+                },
+                residual: !s.species.iter().any(|x| x.name == h.label),
+            }
+        })
+        .collect()
 }

@@ -186,7 +186,15 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     };
 
     let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
-    let lines = spectrum_lines(s, &fractions_at_extraction, &residual_fractions)?;
+    let dynamic_inputs = dynamics
+        .as_ref()
+        .map(|d| super::dynamics::spectrum_inputs(s, d));
+    let lines = spectrum_lines(
+        s,
+        &fractions_at_extraction,
+        &residual_fractions,
+        dynamic_inputs,
+    )?;
     // An unreachable target has no line of its own: the report says so and goes on.
     let neighbourhood = match neighbourhood(s, &lines) {
         Ok(n) => Some(n),
@@ -630,25 +638,31 @@ fn gradient(t: &[f64]) -> Vec<f64> {
         .collect()
 }
 
+/// The A/q lines of the species (or, with the dynamic model, of `species` as
+/// [`super::dynamics::spectrum_inputs`] gives them) and the residual gas.
 fn spectrum_lines(
     s: &Scenario,
     fractions: &[SpeciesFractions],
     residual: &[(String, f64, Vec<f64>)],
+    species: Option<Vec<SpeciesInput>>,
 ) -> Result<crate::spectrum::LineList> {
-    let mut inputs: Vec<SpeciesInput> = s
-        .species
-        .iter()
-        .map(|sp| SpeciesInput {
-            spec: sp.name.clone(),
-            amount: sp.amount,
-            fractions: fractions
-                .iter()
-                .find(|f| f.name == sp.name)
-                .map(|f| f.fractions.clone())
-                .unwrap_or_default(),
-            residual: false,
-        })
-        .collect();
+    let mut inputs: Vec<SpeciesInput> = match species {
+        Some(v) => v,
+        None => s
+            .species
+            .iter()
+            .map(|sp| SpeciesInput {
+                spec: sp.name.clone(),
+                amount: sp.amount,
+                fractions: fractions
+                    .iter()
+                    .find(|f| f.name == sp.name)
+                    .map(|f| f.fractions.clone())
+                    .unwrap_or_default(),
+                residual: false,
+            })
+            .collect(),
+    };
     inputs.extend(residual.iter().map(|(sym, amount, f)| SpeciesInput {
         spec: sym.clone(),
         amount: *amount,
