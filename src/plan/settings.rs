@@ -164,6 +164,9 @@ pub struct ElectronImpactSettings {
 
 /// The source of a scenario.
 #[derive(Clone, Debug, PartialEq)]
+// One value per scenario, matched by reference everywhere: boxing the larger trap
+// settings would save a few hundred bytes once and cost every match a deref.
+#[allow(clippy::large_enum_variant)]
 pub enum SourceSettings {
     BeamTrap(BeamTrapSettings),
     PhotonBeam(PhotonBeamSettings),
