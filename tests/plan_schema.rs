@@ -5,7 +5,7 @@
 
 use std::collections::{BTreeMap, BTreeSet};
 
-use chargecast::plan::defaults::{PEAK_SHAPES, PROCESSES};
+use chargecast::plan::defaults::{DYNAMIC_PROCESSES, MODELS, PEAK_SHAPES, PROCESSES};
 use chargecast::plan::parse_scenario;
 use chargecast::Error;
 
@@ -74,6 +74,8 @@ fn documented(doc: &str) -> Fields {
     let values: BTreeSet<&str> = PROCESSES
         .iter()
         .chain(PEAK_SHAPES.iter())
+        .chain(MODELS.iter())
+        .chain(DYNAMIC_PROCESSES.iter())
         .copied()
         .chain(["log", "linear"])
         .collect();

@@ -19,6 +19,7 @@ from chargecast._util import PALETTE, require_pyplot
 from chargecast.report_text import source_line
 
 __all__ = [
+    "plot_dynamics",
     "plot_energy_map",
     "plot_evolution",
     "plot_ladder",
@@ -346,6 +347,88 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     return ax
 
 
+def plot_dynamics(report: Any, ax: Any | None = None) -> Any:
+    """Ion dynamics (model "dynamic"): kT of the target charge and its neighbours against
+    time (log-log), and their overlap with the beam; the extraction time marked.
+
+    Without ``ax`` two stacked panels (kT above, overlap below); with ``ax`` one panel, kT
+    on the left axis as solid lines and the overlap on a right axis as dotted lines.
+
+    Parameters
+    ----------
+    report : chargecast.Report
+        A report of a beam trap run with the dynamic model.
+    ax : matplotlib Axes, optional
+
+    Returns
+    -------
+    matplotlib Axes or None
+        The kT axes; None for a report without the dynamic model.
+    """
+    d = report.dynamics
+    if d is None:
+        return None
+    plt = require_pyplot()
+    if ax is None:
+        fig, (ax, ax_o) = plt.subplots(2, 1, figsize=(8, 5.5), sharex=True, height_ratios=[1.4, 1])
+        overlap_style = "-"
+    else:
+        fig, ax_o = ax.figure, ax.twinx()
+        overlap_style = ":"
+    q = int(report.scenario.target.charge)
+    label = d.target_species
+    t = d.times_s
+    kt = d.temperatures_ev(label)
+    ov = d.overlap(label)
+    n = d.ions(label)
+    charges = [row.charge for row in d.target_rows]
+    # Our look: the target black and heavy, neighbours below it in warm, above it in cool
+    # tones of the project palette; a population is drawn only where it holds ions.
+    below, above = [PALETTE[3], PALETTE[1]], [PALETTE[0], PALETTE[5]]
+    for c in charges:
+        k = c - q
+        colour = "black" if k == 0 else (below[(-k - 1) % 2] if k < 0 else above[(k - 1) % 2])
+        width = 2.4 if k == 0 else 1.2
+        present = n[:, c] > 1e-6 * max(float(n[:, c].max()), 1e-300)
+        kt_c = np.where(present, kt[:, c], np.nan)
+        ov_c = np.where(present, ov[:, c], np.nan)
+        name = f"{label}{c}+" + (" (target)" if k == 0 else "")
+        z = 3 if k == 0 else 2  # the target on top of its neighbours
+        ax.plot(t, kt_c, "-", color=colour, lw=width, label=name, zorder=z)
+        ax_o.plot(t, ov_c, overlap_style, color=colour, lw=width, label=name, zorder=z)
+    ax.set_xscale("log")
+    ax.set_yscale("log")
+    ax.set_ylabel("kT (eV)")
+    ax_o.set_ylabel("overlap with the beam")
+    ax_o.set_ylim(0.0, 1.05)
+    t_ex = d.extraction_time_s
+    for a in (ax, ax_o):
+        a.axvline(t_ex, color="grey", lw=1, ls="--")
+    ax.grid(True, which="major", alpha=0.3)
+    ax.legend(fontsize=8, frameon=False, loc="upper left")
+    bottom = ax_o if overlap_style == "-" else ax
+    bottom.set_xlabel("confinement time (s)")
+    if overlap_style == "-":
+        ax_o.set_xscale("log")
+        ax_o.grid(True, which="major", alpha=0.3)
+        ax_o.annotate(
+            f"extraction {t_ex:.3g} s",
+            (t_ex, 0.05),
+            textcoords="offset points",
+            xytext=(4, 0),
+            fontsize=8,
+            color="grey",
+        )
+    feed = ", ".join(f"{k} {v:.2g} Pa" for k, v in d.gas_feed_pa.items()) or "no gas fed"
+    ax.set_title(
+        f"{label} ion temperatures and overlap near {q}+ ({feed}; {source_line(report)})",
+        fontsize=10,
+    )
+    if overlap_style == "-":
+        fig.tight_layout()
+    return ax
+
+
 def save_plots(report: Any, directory: str | os.PathLike, dpi: int = 120) -> list[Path]:
     """Write the report's figures as PNG files.
 
@@ -360,19 +443,23 @@ def save_plots(report: Any, directory: str | os.PathLike, dpi: int = 120) -> lis
     Returns
     -------
     list of pathlib.Path
-        ``evolution.png``, ``breeding_ladder.png``, ``energy_time_map.png``, ``aq_spectrum.png``.
+        ``evolution.png``, ``breeding_ladder.png``, ``energy_time_map.png``, ``aq_spectrum.png``,
+        and ``ion_dynamics.png`` for a report of the dynamic model.
     """
     plt = require_pyplot()
     out = Path(directory)
     out.mkdir(parents=True, exist_ok=True)
     written = []
-    for name, plot in (
+    figures = [
         ("evolution", plot_evolution),
         ("breeding_ladder", plot_ladder),
         ("energy_time_map", plot_energy_map),
         ("aq_spectrum", plot_spectrum),
-    ):
-        if name == "breeding_ladder":
+    ]
+    if report.dynamics is not None:
+        figures.append(("ion_dynamics", plot_dynamics))
+    for name, plot in figures:
+        if name in ("breeding_ladder", "ion_dynamics"):
             ax = plot(report)
         else:
             _, ax0 = plt.subplots(figsize=(8, 4.5))

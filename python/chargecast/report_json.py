@@ -30,10 +30,19 @@ _SOURCE_FIELDS = {
         "gas_temperature_k",
         "compensation",
         "processes",
+        "model",
     ),
     "photon_beam": ("photon_energy_ev", "flux_cm2_s", "bandwidth_ev"),
     "electron_impact": ("energy_ev", "energy_spread_ev"),
 }
+# The beam trap's fields that only the dynamic model takes.
+_DYNAMIC_FIELDS = (
+    "axial_barrier_v",
+    "drift_tube_radius_m",
+    "gas_feed_pa",
+    "dynamic_processes",
+    "injected_atoms",
+)
 
 
 def _fields(obj: Any, names: tuple[str, ...]) -> dict[str, Any]:
@@ -53,7 +62,11 @@ def scenario_dict(scenario: Any) -> dict[str, Any]:
             _fields(sp, ("name", "symbol", "z", "mass_number", "amount", "initial_charge"))
             for sp in s.species
         ],
-        "source": {"kind": src.kind, **_fields(src, _SOURCE_FIELDS[src.kind])},
+        "source": {
+            "kind": src.kind,
+            **_fields(src, _SOURCE_FIELDS[src.kind]),
+            **(_fields(src, _DYNAMIC_FIELDS) if src.model == "dynamic" else {}),
+        },
         "residual_gas_pa": s.residual_gas_pa,
         "residual_elements": s.residual_elements,
         "time": _fields(s.time, ("start_s", "stop_s", "points", "extraction_s")),
@@ -102,6 +115,7 @@ def to_dict(report: Any) -> dict[str, Any]:
     out: dict[str, Any] = {
         "scenario": scenario_dict(s),
         "target": s.target.label,
+        "model": r.model,
         "breeding_ladder": ladder,
         "evolution": None,
         "best_energy": None,
@@ -210,6 +224,8 @@ def to_dict(report: Any) -> dict[str, Any]:
                 for name, half in zip(c.nuclides, c.half_lives_s)
             ],
         }
+    if r.dynamics is not None:
+        out["dynamics"] = _dynamics(r.dynamics)
     o = r.neighbourhood
     out["aq_neighbourhood"] = None if o is None else _neighbourhood(o)
     out["charge_state_ranking"] = [
@@ -246,6 +262,35 @@ def _neighbourhood(o: Any) -> dict[str, Any]:
             )
             for i in o.interferers
         ],
+    }
+
+
+def _dynamics(d: Any) -> dict[str, Any]:
+    """The ion-dynamics section: settings, rows at the extraction time, the bookkeeping."""
+    return {
+        "axial_barrier_v": d.axial_barrier_v,
+        "drift_tube_radius_m": d.drift_tube_radius_m,
+        "gas_feed_pa": d.gas_feed_pa,
+        "processes": d.processes,
+        "injected_atoms": d.injected_atoms,
+        "target_species": d.target_species,
+        "extraction_time_s": d.extraction_time_s,
+        "target_and_neighbours": [
+            _fields(row, ("charge", "ions", "temperature_ev", "overlap", "escape_per_s"))
+            for row in d.target_rows
+        ],
+        "species": [
+            _fields(sp, ("label", "fed_only", "ions", "mean_charge", "mean_temperature_ev", "escape_per_s"))
+            for sp in d.species_rows
+        ],
+        "compensation": d.compensation,
+        "well_depth_v": d.well_depth_v,
+        "bookkeeping": {
+            "particles": d.particles,
+            "energy_ev": d.energy_ev,
+            "particle_balance": d.particle_balance,
+            "energy_balance": d.energy_balance,
+        },
     }
 
 

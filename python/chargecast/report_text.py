@@ -11,13 +11,23 @@ import textwrap
 from pathlib import Path
 from typing import Any
 
-__all__ = ["SOURCE_NAMES", "render", "source_line"]
+__all__ = ["MODEL_NAMES", "SOURCE_NAMES", "render", "source_line"]
 
 #: How each source kind is named in prose.
 SOURCE_NAMES = {
     "beam_trap": "electron-beam trap",
     "photon_beam": "photon beam",
     "electron_impact": "single-collision electron source",
+}
+
+#: How each model of the evolution is named in prose (keys: ``Report.model``).
+MODEL_NAMES = {
+    "fixed": "fixed (ions inside the beam at one temperature; linear rate equations)",
+    "dynamic": (
+        "dynamic (ion dynamics: beam heating, energy exchange, escape over the barriers, "
+        "overlap with the beam, space charge; Penetrante et al. 1991)"
+    ),
+    "single_collision": "single collision (partial cross sections of one electron impact)",
 }
 
 
@@ -102,6 +112,7 @@ class _TextReport:
         out += self.best_energy()
         out += self.ions()
         out += self.injection()
+        out += self.dynamics()
         out += self.neighbourhood()
         out += self.recommendation()
         if r.warnings:
@@ -127,6 +138,16 @@ class _TextReport:
             out.append(f"  photons {src.photon_energy_ev:.6g} eV, flux {src.flux_cm2_s:.4g} cm⁻² s⁻¹")
         else:
             out.append(f"  electrons {src.energy_ev:.6g} eV, spread {src.energy_spread_ev:.4g} eV")
+        out.append(f"  ion model: {MODEL_NAMES[r.model]}")
+        d = r.dynamics
+        if d is not None:
+            feed = ", ".join(f"{k} {v:.3g} Pa" for k, v in d.gas_feed_pa.items()) or "none"
+            out.append(
+                f"  axial barrier {d.axial_barrier_v:.4g} V, "
+                f"drift tube radius {d.drift_tube_radius_m * 1e3:.4g} mm, "
+                f"{d.injected_atoms:.3e} atoms injected at t = 0; gas fed: {feed}"
+            )
+            out.append("  dynamic processes on: " + (", ".join(d.processes) or "none"))
         species = ", ".join(
             f"{sp.name} ×{sp.amount:g}" + (f" (enters {sp.initial_charge}+)" if sp.initial_charge else "")
             for sp in s.species
@@ -360,9 +381,67 @@ class _TextReport:
             f"  {t.label}: {d.target:.3e} ions per extraction; all charge states of "
             f"{t.isotope}: {d.all_charges:.3e}"
         )
+        iso = f"; isotopic share {d.isotope_share:.4g}" if d.isotope_share != 1.0 else ""
+        if self.r.dynamics is not None:
+            out.append(
+                f"  N_q: the dynamic model's trapped ions of {d.species} (its share of the trapped charge "
+                f"{d.species_share_of_charge:.3g}){iso}"
+            )
+        else:
+            out.append("  N_q = f·N_e·F_q / Σ q·F_q, shared among species by amount × mean charge" + iso)
+        return out
+
+    def dynamics(self) -> list[str]:
+        d = self.r.dynamics
+        if d is None:
+            return []
+        t, q = self.s.target, self.q
+        header = ["ion", "ions in trap", "kT (eV)", "overlap", "escape (ions/s)"]
+        rows = [
+            [
+                f"{d.target_species}{row.charge}+" + (" ◀" if row.charge == q else ""),
+                _g(row.ions, ".3e"),
+                _g(row.temperature_ev, ".4g"),
+                _g(row.overlap, ".3f"),
+                _g(row.escape_per_s, ".3e"),
+            ]
+            for row in d.target_rows
+        ]
+        species = [
+            [
+                sp.label + (" (fed gas)" if sp.fed_only else ""),
+                _g(sp.ions, ".3e"),
+                _g(sp.mean_charge, ".2f"),
+                _g(sp.mean_temperature_ev, ".4g"),
+                _g(sp.escape_per_s, ".3e"),
+            ]
+            for sp in d.species_rows
+        ]
+        p, e = d.particles, d.energy_ev
+        target_row = next((row for row in d.target_rows if row.charge == q), None)
+        out = [
+            "",
+            f"Ion dynamics at {d.extraction_time_s:.4g} s (the extraction time): "
+            f"{t.symbol}{q}+ and its neighbours",
+            *_table(header, rows),
+            "",
+            "  species in the trap",
+            *_table(["species", "ions", "mean charge", "mean kT (eV)", "escape (ions/s)"], species),
+            f"  compensation {d.compensation:.3g} of the electrons' charge; "
+            f"radial well depth {d.well_depth_v:.4g} V",
+        ]
+        if target_row is not None:
+            out.append(
+                f"  leaky-mode delivery of {d.target_species}{q}+ (escape over the barriers): "
+                f"{target_row.escape_per_s:.3e} ions/s"
+            )
         out.append(
-            "  N_q = f·N_e·F_q / Σ q·F_q, shared among species by amount × mean charge"
-            + (f"; isotopic share {d.isotope_share:.4g}" if d.isotope_share != 1.0 else "")
+            f"  bookkeeping: injected {p['injected']:.4g} + fed {p['fed']:.4g} − escaped {p['escaped']:.4g} "
+            f"= trapped {p['trapped']:.4g} particles (largest miss {d.particle_balance:.1e} relative)"
+        )
+        out.append(
+            f"  thermal energy: in {e['in']:.4g} eV, out {e['out']:.4g} eV, held {e['thermal']:.4g} eV "
+            f"(largest miss {d.energy_balance:.1e} relative)"
         )
         return out
 

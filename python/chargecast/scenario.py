@@ -45,6 +45,23 @@ Source: exactly one of
     report then gives the tube-to-cathode voltage of the best energy after the
     space-charge depression).
 
+    ``model`` -- the ion model: ``"fixed"`` (default: the ions of each species stay inside
+    the beam at ``ion_temperature_ev``, linear rate equations) or ``"dynamic"`` (the ion
+    dynamics of every species together: beam heating, energy exchange, escape over the
+    barriers with evaporative cooling, overlap with the beam and the space-charge limit;
+    ``ion_temperature_ev`` is then the injected atoms' temperature). The dynamic model
+    takes: ``axial_barrier_v`` (100, V, >= 0), ``drift_tube_radius_m`` (5e-3, m, larger
+    than the beam), ``gas_feed_pa`` (an inline table of neutral gases fed continuously,
+    e.g. ``{ N2 = 2e-9 }``, Pa, the gases of the residual-gas table; default none; a fed
+    gas's elements join the run as species of their own), ``dynamic_processes`` (the
+    processes on, default ``"overlap"``, ``"heating"``, ``"exchange"``, ``"escape"``,
+    ``"space_charge"``; add ``"ionization_heating"``), ``injected_atoms`` (atoms of all
+    species injected into the beam at t = 0, > 0; default: as many as ions at the target
+    charge would fill ``compensation`` of the electrons' charge). With the dynamic model
+    species enter neutral, the report adds temperatures, escape fluxes (leaky-mode
+    delivery), overlaps, compensation, well depth and the bookkeeping, and the energy scan
+    stays on the fixed model (the report says so). The other models refuse these fields.
+
     ``[photon_beam]`` -- ``photon_energy_ev``, ``flux_cm2_s`` (photons cm⁻² s⁻¹),
     ``bandwidth_ev`` (optional).
 
@@ -281,6 +298,16 @@ class Report(_core.Report):
     aq_lines, neighbourhood, ranking
         The A/q spectrum, the target's interferers and the charge states ranked.
     recommended : Recommendation or None
+    model : str
+        The model of the evolution: ``"fixed"`` or ``"dynamic"`` (beam trap), ``"fixed"``
+        (photon beam), ``"single_collision"`` (electron impact).
+    dynamics : DynamicReport or None
+        Model ``"dynamic"``: at the extraction time, ``target_rows`` (the target charge and
+        its neighbours: ``ions``, ``temperature_ev``, ``overlap``, ``escape_per_s`` in
+        ions/s) and ``species_rows``; ``compensation``, ``well_depth_v``; the bookkeeping
+        (``particles``, ``energy_ev``, ``particle_balance``, ``energy_balance``); and the
+        histories ``ions(species)``, ``temperatures_ev(species)``, ``overlap(species)``,
+        ``escape_per_s(species)`` [T, Z+1] on ``times_s``.
     notes : list of str
     cautions : str
 

@@ -15,7 +15,8 @@ use crate::atoms::{element, split_species, Element, Isotope};
 use crate::error::{Error, Result};
 use crate::processes::gases::gas;
 use crate::sources::beam_trap::{
-    Processes, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K, DEFAULT_ION_TEMPERATURE_EV,
+    Processes, TrapModel, DEFAULT_COMPENSATION, DEFAULT_GAS_TEMPERATURE_K,
+    DEFAULT_ION_TEMPERATURE_EV,
 };
 use crate::sources::electron_beam::BeamSize;
 use crate::sources::rib_cycle::{
@@ -139,6 +140,7 @@ impl Checker<'_, '_> {
         let species = self.species(raw.species, &target)?;
         let source = self.source(raw.beam_trap, raw.photon_beam, raw.electron_impact)?;
         let (residual_gas_pa, residual_elements) = self.residual_gas(raw.residual_gas_pa)?;
+        self.dynamic_rules(&source, &species)?;
         // The core source checks its own ranges (compensation, temperatures, beam size).
         self.build(&source, &residual_gas_pa)?;
         let mut time = self.time(raw.time, &source, &target)?;
@@ -445,7 +447,68 @@ impl Checker<'_, '_> {
             compensation: t.compensation.unwrap_or(DEFAULT_COMPENSATION),
             processes,
             drift_tube_radius_m: t.drift_tube_radius_m,
+            model: t.model.unwrap_or_else(|| TrapModel::NAMES[0].to_string()),
+            axial_barrier_v: t.axial_barrier_v,
+            gas_feed_pa: self.gas_feed(t.gas_feed_pa)?,
+            dynamic_processes: self.dynamic_processes(t.dynamic_processes)?,
+            injected_atoms: t
+                .injected_atoms
+                .map(|n| self.positive("beam_trap.injected_atoms", n, "atoms"))
+                .transpose()?,
         })
+    }
+
+    /// The gases fed into a dynamic trap: known formulas, pressures >= 0 (Pa).
+    fn gas_feed(&self, raw: Option<BTreeMap<String, f64>>) -> Result<Pairs> {
+        raw.unwrap_or_default()
+            .into_iter()
+            .map(|(name, p)| {
+                let path = format!("beam_trap.gas_feed_pa.{name}");
+                let g = self.wrap(&path, gas(&name))?;
+                Ok((g.formula.to_string(), self.non_negative(&path, p, "Pa")?))
+            })
+            .collect()
+    }
+
+    /// The dynamic processes by name, each one of the core's names.
+    fn dynamic_processes(&self, raw: Option<Vec<String>>) -> Result<Option<Vec<String>>> {
+        let Some(list) = raw else { return Ok(None) };
+        for (i, p) in list.iter().enumerate() {
+            if !DYNAMIC_PROCESSES.contains(&p.as_str()) {
+                return Err(self.err(
+                    &format!("beam_trap.dynamic_processes[{i}]"),
+                    format!(
+                        "unknown dynamic process {p:?}: allowed \"{}\"",
+                        DYNAMIC_PROCESSES.join("\", \"")
+                    ),
+                ));
+            }
+        }
+        Ok(Some(list))
+    }
+
+    /// What only the dynamic model takes: injected atoms (the builder refuses the other
+    /// dynamic fields with the fixed model), and species entering as neutral atoms.
+    fn dynamic_rules(&self, source: &SourceSettings, species: &[SpeciesEntry]) -> Result<()> {
+        let SourceSettings::BeamTrap(t) = source else {
+            return Ok(());
+        };
+        if !t.is_dynamic() {
+            if t.injected_atoms.is_some() {
+                return Err(self.err(
+                    "beam_trap.injected_atoms",
+                    "belongs to the ion-dynamics model: add model = \"dynamic\" (the fixed model works with fractions, not numbers of atoms)",
+                ));
+            }
+            return Ok(());
+        }
+        if let Some(i) = species.iter().position(|s| s.initial_charge != 0) {
+            return Err(self.err(
+                &format!("species[{i}].initial_charge"),
+                "the dynamic model injects neutral atoms into the beam: allowed 0 only",
+            ));
+        }
+        Ok(())
     }
 
     /// Build the core source: its constructors check the ranges of its settings, and an
@@ -826,6 +889,74 @@ CO = 1e-8
             "radius_m = 50e-6\nmagnetic_field_t = 3.0",
         ));
         assert!(m.contains("exactly one"), "{m}");
+    }
+
+    #[test]
+    fn dynamic_settings_are_checked_where_written() {
+        let dynamic = GOOD.replace("length_m = 0.5", "length_m = 0.5\nmodel = \"dynamic\"");
+        let s = parse_scenario(&dynamic, "s.toml").unwrap();
+        let SourceSettings::BeamTrap(t) = &s.source else {
+            panic!("a beam trap")
+        };
+        assert!(t.is_dynamic() && t.gas_feed_pa.is_empty() && t.injected_atoms.is_none());
+        let m = message(&GOOD.replace("length_m = 0.5", "length_m = 0.5\nmodel = \"hot\""));
+        assert!(
+            m.contains("line 12") && m.contains("beam_trap.model") && m.contains("\"dynamic\""),
+            "{m}"
+        );
+        // The dynamic model's fields with the fixed model name the field and the remedy.
+        for (field, line) in [
+            ("gas_feed_pa = { N2 = 1e-9 }", "beam_trap.gas_feed_pa"),
+            ("axial_barrier_v = 50.0", "beam_trap.axial_barrier_v"),
+            (
+                "dynamic_processes = [\"heating\"]",
+                "beam_trap.dynamic_processes",
+            ),
+            ("injected_atoms = 1e6", "beam_trap.injected_atoms"),
+        ] {
+            let m = message(&GOOD.replace("length_m = 0.5", &format!("length_m = 0.5\n{field}")));
+            assert!(
+                m.contains("line 12")
+                    && m.contains(line)
+                    && (m.contains("model = \"dynamic\"") || m.contains("model=\"dynamic\"")),
+                "{m}"
+            );
+        }
+        let m = message(&dynamic.replace("model", "gas_feed_pa = { SF6 = 1e-9 }\nmodel"));
+        assert!(
+            m.contains("line 12") && m.contains("beam_trap.gas_feed_pa.SF6") && m.contains("N2"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "gas_feed_pa = { N2 = -1.0 }\nmodel"));
+        assert!(
+            m.contains("beam_trap.gas_feed_pa.N2") && m.contains(">= 0"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace(
+            "model",
+            "dynamic_processes = [\"heating\", \"cooling\"]\nmodel",
+        ));
+        assert!(
+            m.contains("beam_trap.dynamic_processes[1]") && m.contains("ionization_heating"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "injected_atoms = 0.0\nmodel"));
+        assert!(
+            m.contains("beam_trap.injected_atoms") && m.contains("> 0"),
+            "{m}"
+        );
+        let m = message(&dynamic.replace("model", "drift_tube_radius_m = 1e-6\nmodel"));
+        assert!(
+            m.contains("beam_trap.drift_tube_radius_m") && m.contains("beam radius"),
+            "{m}"
+        );
+        let m = message(&format!(
+            "{dynamic}\n[[species]]\nname = \"Ar\"\ninitial_charge = 1\n"
+        ));
+        assert!(
+            m.contains("species[0].initial_charge") && m.contains("neutral"),
+            "{m}"
+        );
     }
 
     #[test]

@@ -4,12 +4,17 @@
 
 use super::settings::{SourceSettings, Target};
 use crate::atoms::{element, Element};
-use crate::sources::beam_trap::Processes;
+use crate::sources::beam_trap::{Processes, TrapModel};
 use crate::sources::breeding::breeding_time_s;
 use crate::sources::electron_beam::current_density_a_cm2;
+use crate::sources::trap_dynamics::DynamicsSwitches;
 
 /// Processes a beam trap can include (the core's list).
 pub const PROCESSES: [&str; 6] = Processes::NAMES;
+/// Ion models of a beam trap (the core's list, the default first).
+pub const MODELS: [&str; 2] = TrapModel::NAMES;
+/// Processes of the dynamic model (the core's list).
+pub const DYNAMIC_PROCESSES: [&str; 6] = DynamicsSwitches::NAMES;
 /// Peak shapes of the separator.
 pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
 pub const DEFAULT_PEAK_SHAPE: &str = "gaussian";
@@ -74,3 +79,14 @@ pub const SPREAD_SAMPLES: usize = 17;
 /// The energy scan of a beam trap adds points this far (eV) below and above the
 /// thresholds that open and over-breed the target, so the map resolves their jumps.
 pub const THRESHOLD_SIDE_EV: f64 = 0.01;
+
+/// Without `injected_atoms`: the dynamic model starts from as many neutral atoms (of all
+/// species together) as ions at the target charge would fill the trap's `compensation` of
+/// the electrons' charge, `c·N_e/q` — the load the fixed model's ions per extraction assume.
+pub fn default_injected_atoms(
+    electrons_in_trap: f64,
+    compensation: f64,
+    target_charge: u32,
+) -> f64 {
+    compensation * electrons_in_trap / f64::from(target_charge.max(1))
+}

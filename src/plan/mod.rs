@@ -13,6 +13,7 @@
 
 pub mod checker;
 pub mod defaults;
+pub mod dynamics;
 pub mod positions;
 pub mod report;
 pub mod run;
@@ -21,6 +22,7 @@ pub mod settings;
 pub mod warnings;
 
 pub use checker::parse_scenario;
+pub use dynamics::{DynamicChargeRow, DynamicReport, DynamicSpeciesRow};
 pub use report::*;
 pub use run::run;
 pub use schema::{MAX_QUOTE_CHARS, MAX_SCENARIO_BYTES};

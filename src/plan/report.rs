@@ -19,6 +19,10 @@ X-rays from electron beams, intense UV/X-ray photon beams, strong magnets and \
 cryogens, and sometimes radioactive species: follow local codes, the facility's \
 radiation-safety officer and licensed practice.";
 
+/// Model names of the non-trap sources in [`Report::model`] (a trap names its own).
+pub const MODEL_FIXED: &str = crate::sources::beam_trap::TrapModel::NAMES[0];
+pub const MODEL_SINGLE_COLLISION: &str = "single_collision";
+
 /// A charge state below this fraction of the isotope's ions is not a practical choice:
 /// the recommendation skips it (and a target peaking below it gets a note).
 pub const MIN_PRACTICAL_FRACTION: f64 = 1e-3;
@@ -326,9 +330,23 @@ pub struct Report {
     pub notes: Vec<String>,
     /// Plausibility warnings (settings outside what the models were made for).
     pub warnings: Vec<super::warnings::Warning>,
+    /// What the ion-dynamics model adds (beam trap with model "dynamic"; else None).
+    pub dynamics: Option<super::dynamics::DynamicReport>,
 }
 
 impl Report {
+    /// The model the report's evolution used: "fixed" or "dynamic" for a beam trap,
+    /// "fixed" for a photon beam (ions at one temperature, linear rate equations),
+    /// "single_collision" for an electron-impact source, "plasma_balance" for a plasma.
+    pub fn model(&self) -> &'static str {
+        match &self.source {
+            Source::BeamTrap(t) => t.model.name(),
+            Source::PhotonBeam(_) => MODEL_FIXED,
+            Source::Plasma(_) => "plasma_balance",
+            Source::ElectronImpact(_) => MODEL_SINGLE_COLLISION,
+        }
+    }
+
     /// The evolution of the species that provides the target (None for a single collision).
     pub fn target_evolution(&self) -> Option<&SpeciesEvolution> {
         let name = &self.scenario.target_species().name;

@@ -46,6 +46,8 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     let mut fractions_at_extraction = Vec::new();
     let mut ions = None;
     let mut robust = None;
+    let mut dynamic_run = None;
+    let mut dynamics = None;
     let energy_scan;
     if let Source::ElectronImpact(src) = &source {
         for sp in &s.species {
@@ -67,13 +69,23 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         energy_scan = EnergyScan::Appearance(scan);
     } else {
         let times = s.time.times_s();
-        for sp in &s.species {
-            evolutions.push(SpeciesEvolution {
-                name: sp.name.clone(),
-                symbol: sp.symbol.clone(),
-                times_s: times.clone(),
-                fractions: source.evolve(sp.element(), &times, sp.initial_charge)?,
-            });
+        match &source {
+            Source::BeamTrap(trap) if trap.model.dynamics().is_some() => {
+                let (evos, run, injected) = super::dynamics::evolve(s, trap, &times)?;
+                evolutions = evos;
+                dynamic_run = Some((run, injected));
+                notes.push(DYNAMIC_SCAN_NOTE.to_string());
+            }
+            _ => {
+                for sp in &s.species {
+                    evolutions.push(SpeciesEvolution {
+                        name: sp.name.clone(),
+                        symbol: sp.symbol.clone(),
+                        times_s: times.clone(),
+                        fractions: source.evolve(sp.element(), &times, sp.initial_charge)?,
+                    });
+                }
+            }
         }
         let target_name = &s.target_species().name;
         let evo = evolutions
@@ -107,12 +119,19 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
             ));
         }
         if let Source::BeamTrap(trap) = &source {
-            ions = Some(ions_per_extraction(
-                s,
-                trap,
-                t_ex.0,
-                &fractions_at_extraction,
-            )?);
+            if let Some((run, injected)) = dynamic_run.take() {
+                let d = super::dynamics::report(s, trap, run, injected, t_ex.0)?;
+                let iso = isotope_share(s.target_species(), &s.target);
+                ions = Some(super::dynamics::ions_per_extraction(s, &d, iso)?);
+                dynamics = Some(d);
+            } else {
+                ions = Some(ions_per_extraction(
+                    s,
+                    trap,
+                    t_ex.0,
+                    &fractions_at_extraction,
+                )?);
+            }
         }
         let map = energy_map(s, &source, target_el, &times, progress)?;
         if let Source::BeamTrap(trap) = &source {
@@ -120,7 +139,9 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
             let spread = trap.energy_spread_ev();
             let scan = (s.energy_scan.start_ev, s.energy_scan.stop_ev);
             let mut best = robust_optimum(&map, spread, target_el.ionization_energies_ev(), scan);
-            if let (SourceSettings::BeamTrap(t), Some(tube)) = (&s.source, drift_tube_radius_m(s)) {
+            if let (SourceSettings::BeamTrap(t), Some(tube)) =
+                (&s.source, drift_tube_radius_m(s, &source))
+            {
                 best.tube_voltage_v = tube_voltage_v(
                     best.energy_ev,
                     t.current_a,
@@ -192,12 +213,16 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
             ));
         }
     }
+    let dynamic_inputs = dynamics
+        .as_ref()
+        .map(|d| super::dynamics::spectrum_inputs(s, d));
     let lines = spectrum_lines(
         s,
         &source,
         &fractions_at_extraction,
         &residual_fractions,
         injection.as_ref(),
+        dynamic_inputs,
     )?;
     // An unreachable target has no line of its own: the report says so and goes on.
     let neighbourhood = match neighbourhood(s, &lines) {
@@ -272,8 +297,12 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         recommended,
         notes,
         warnings,
+        dynamics,
     })
 }
+
+/// Said in every dynamic-model report: which parts use which model.
+pub const DYNAMIC_SCAN_NOTE: &str = "the evolution, fractions and ions per extraction come from the ion-dynamics model at the scenario's energy; the energy scan (best and robust energy) uses the fixed model, since one dynamic evolution costs about as much as the whole fixed-model map";
 
 /// Stepwise breeding of the target element: Lotz steps in an electron beam (the time at the
 /// trap's current density), photoionization steps in a photon beam with one charge per
@@ -469,7 +498,12 @@ pub fn robust_optimum(
 }
 
 /// The drift-tube radius of a beam trap scenario, when given.
-fn drift_tube_radius_m(s: &Scenario) -> Option<f64> {
+fn drift_tube_radius_m(s: &Scenario, source: &Source) -> Option<f64> {
+    if let Source::BeamTrap(trap) = source {
+        if let Some(d) = trap.model.dynamics() {
+            return Some(d.drift_tube_radius_m);
+        }
+    }
     match &s.source {
         SourceSettings::BeamTrap(t) => t.drift_tube_radius_m,
         _ => None,
@@ -766,14 +800,20 @@ fn species_inputs(
     Ok(inputs)
 }
 
+/// The A/q lines of the species (or, with the dynamic model, of `species` as
+/// [`super::dynamics::spectrum_inputs`] gives them) and the residual gas.
 fn spectrum_lines(
     s: &Scenario,
     source: &Source,
     fractions: &[SpeciesFractions],
     residual: &[(String, f64, Vec<f64>)],
     cycle: Option<&CycleResult>,
+    species: Option<Vec<SpeciesInput>>,
 ) -> Result<crate::spectrum::LineList> {
-    let mut inputs = species_inputs(s, source, fractions, cycle)?;
+    let mut inputs: Vec<SpeciesInput> = match species {
+        Some(v) => v,
+        None => species_inputs(s, source, fractions, cycle)?,
+    };
     inputs.extend(residual.iter().map(|(sym, amount, f)| SpeciesInput {
         spec: sym.clone(),
         amount: *amount,

@@ -55,6 +55,11 @@ pub(crate) struct RawBeamTrap {
     pub compensation: Option<f64>,
     pub processes: Option<Vec<String>>,
     pub drift_tube_radius_m: Option<f64>,
+    pub model: Option<String>,
+    pub axial_barrier_v: Option<f64>,
+    pub gas_feed_pa: Option<BTreeMap<String, f64>>,
+    pub dynamic_processes: Option<Vec<String>>,
+    pub injected_atoms: Option<f64>,
 }
 
 #[derive(Debug, Deserialize)]

@@ -5,9 +5,10 @@ use std::collections::BTreeMap;
 
 use crate::atoms::{element, Element};
 use crate::error::Result;
-use crate::sources::beam_trap::{require_compensation, Processes};
+use crate::sources::beam_trap::{Processes, TrapModel};
 use crate::sources::electron_beam::BeamSize;
 use crate::sources::rib_cycle::BreedingCycle;
+use crate::sources::trap_dynamics::DynamicsSwitches;
 use crate::sources::{BeamTrap, ElectronBeam, ElectronImpactSource, PhotonBeam, Source};
 
 /// The target ion: one isotope at one charge state.
@@ -72,6 +73,17 @@ pub struct BeamTrapSettings {
     /// tube-to-cathode voltage that puts it on the beam axis after the space-charge
     /// depression.
     pub drift_tube_radius_m: Option<f64>,
+    /// The ion model by name, one of [`TrapModel::NAMES`] ("fixed" by default).
+    pub model: String,
+    /// Dynamic model only: axial barrier (V); None: the model's default.
+    pub axial_barrier_v: Option<f64>,
+    /// Dynamic model only: neutral gases fed continuously (formula, Pa).
+    pub gas_feed_pa: Vec<(String, f64)>,
+    /// Dynamic model only: the dynamic processes that are on (None: the model's default).
+    pub dynamic_processes: Option<Vec<String>>,
+    /// Dynamic model only: atoms of all species injected into the beam at t = 0 (None:
+    /// [`super::defaults::default_injected_atoms`]).
+    pub injected_atoms: Option<f64>,
 }
 
 impl BeamTrapSettings {
@@ -93,19 +105,45 @@ impl BeamTrapSettings {
         Processes::from_names(&self.processes)
     }
 
-    /// The core trap with the scenario's residual gas.
+    /// Whether the trap runs the ion-dynamics model.
+    pub fn is_dynamic(&self) -> bool {
+        self.model == TrapModel::NAMES[1]
+    }
+
+    /// The core trap with the scenario's residual gas, built by the core's validating
+    /// builder (which also refuses dynamic settings with the fixed model). With the fixed
+    /// model the drift-tube radius only serves the report's tube voltage.
     pub fn build(&self, residual_gas_pa: &[(String, f64)]) -> Result<BeamTrap> {
-        let mut trap = BeamTrap::new(
-            self.beam()?,
-            self.length_m,
-            residual_gas_pa,
-            self.ion_temperature_ev,
-        )?;
-        trap.gas_temperature_k =
-            crate::error::require_positive("gas_temperature_k", self.gas_temperature_k)?;
-        trap.compensation = require_compensation(self.compensation)?;
-        trap.processes = self.processes()?;
-        Ok(trap)
+        let mut b = BeamTrap::builder(self.beam()?, self.length_m)
+            .residual_gas_pa(residual_gas_pa.to_vec())
+            .ion_temperature_ev(self.ion_temperature_ev)
+            .gas_temperature_k(self.gas_temperature_k)
+            .compensation(self.compensation)
+            .processes(self.processes()?)
+            .model(&self.model);
+        if self.is_dynamic() {
+            if let Some(tube) = self.drift_tube_radius_m {
+                b = b.drift_tube_radius_m(tube);
+            }
+            if let Some(v) = self.axial_barrier_v {
+                b = b.axial_barrier_v(v);
+            }
+            b = b.gas_feed_pa(self.gas_feed_pa.clone());
+            if let Some(names) = &self.dynamic_processes {
+                b = b.dynamic_processes(DynamicsSwitches::from_names(names)?);
+            }
+        } else {
+            if !self.gas_feed_pa.is_empty() {
+                b = b.gas_feed_pa(self.gas_feed_pa.clone());
+            }
+            if let Some(v) = self.axial_barrier_v {
+                b = b.axial_barrier_v(v);
+            }
+            if let Some(names) = &self.dynamic_processes {
+                b = b.dynamic_processes(DynamicsSwitches::from_names(names)?);
+            }
+        }
+        b.build()
     }
 }
 
@@ -127,6 +165,9 @@ pub struct ElectronImpactSettings {
 
 /// The source of a scenario.
 #[derive(Clone, Debug, PartialEq)]
+// One value per scenario, matched by reference everywhere: boxing the larger trap
+// settings would save a few hundred bytes once and cost every match a deref.
+#[allow(clippy::large_enum_variant)]
 pub enum SourceSettings {
     BeamTrap(BeamTrapSettings),
     PhotonBeam(PhotonBeamSettings),

@@ -17,6 +17,7 @@ mod photon_beam;
 mod plan;
 mod plasma;
 mod processes_indirect;
+mod plan_dynamics;
 mod rate_equations;
 mod results;
 mod spectrum;
@@ -51,5 +52,6 @@ fn _core(m: &Bound<'_, PyModule>) -> PyResult<()> {
     plasma::register(m)?;
     uncertainty::register(m)?;
     molecules::register(m)?;
+    plan_dynamics::register(m)?;
     Ok(())
 }

@@ -76,6 +76,13 @@ pub(crate) struct PySourceSettings {
     flux_cm2_s: Option<f64>,
     bandwidth_ev: Option<f64>,
     energy_spread_ev: Option<f64>,
+    /// Beam trap: "fixed" or "dynamic"; the dynamic model's settings (None otherwise).
+    model: Option<String>,
+    axial_barrier_v: Option<f64>,
+    drift_tube_radius_m: Option<f64>,
+    gas_feed_pa: Option<BTreeMap<String, f64>>,
+    dynamic_processes: Option<Vec<String>>,
+    injected_atoms: Option<f64>,
 }
 
 impl From<&SourceSettings> for PySourceSettings {
@@ -97,6 +104,14 @@ impl From<&SourceSettings> for PySourceSettings {
                 gas_temperature_k: Some(t.gas_temperature_k),
                 compensation: Some(t.compensation),
                 processes: Some(t.processes.clone()),
+                model: Some(t.model.clone()),
+                axial_barrier_v: t.axial_barrier_v,
+                drift_tube_radius_m: t.drift_tube_radius_m,
+                gas_feed_pa: t
+                    .is_dynamic()
+                    .then(|| t.gas_feed_pa.iter().cloned().collect()),
+                dynamic_processes: t.dynamic_processes.clone(),
+                injected_atoms: t.injected_atoms,
                 ..Default::default()
             },
             SourceSettings::PhotonBeam(p) => PySourceSettings {
@@ -978,6 +993,20 @@ impl PyReport {
     #[getter]
     fn cautions(&self) -> &'static str {
         CAUTIONS
+    }
+    /// The model of the evolution: "fixed" or "dynamic" (beam trap), "fixed" (photon
+    /// beam), "single_collision" (electron impact).
+    #[getter]
+    fn model(&self) -> &'static str {
+        self.inner.model()
+    }
+    /// What the ion-dynamics model adds (model "dynamic"; else None).
+    #[getter]
+    fn dynamics(&self) -> Option<super::plan_dynamics::PyDynamicReport> {
+        self.inner
+            .dynamics
+            .clone()
+            .map(super::plan_dynamics::PyDynamicReport::new)
     }
 }
 

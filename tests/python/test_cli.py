@@ -325,3 +325,17 @@ def test_a_full_stdout_is_one_line_error() -> None:
     assert r.returncode == 1
     (line,) = one_line_errors(r.stderr)
     assert "cannot write the report" in line
+
+
+def test_the_coolant_scenario_by_name_reports_its_dynamics(tmp_path: Path) -> None:
+    r = run("plan", "coolant", "--json", "--plot", str(tmp_path / "figs"))
+    assert r.returncode == 0, r.stderr
+    d = json.loads(r.stdout)
+    assert d["model"] == "dynamic" and d["scenario"]["source"]["model"] == "dynamic"
+    assert d["dynamics"]["gas_feed_pa"] == {"N2": 2e-9}
+    assert {row["label"] for row in d["dynamics"]["species"]} == {"Ar", "N"}
+    names = sorted(Path(f).name for f in d["figures"])
+    assert names == sorted(
+        ["aq_spectrum.png", "breeding_ladder.png", "energy_time_map.png", "evolution.png", "ion_dynamics.png"]
+    )
+    assert "radiation-safety" in d["cautions"]

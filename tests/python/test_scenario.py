@@ -389,3 +389,115 @@ def test_sweep_is_labelled_with_units() -> None:
         assert out.xs("He", level="element").index.get_level_values("charge").max() == 2
         total = out["fraction"].groupby(level=["element", "energy_ev", "time_s"]).sum()
     np.testing.assert_allclose(np.asarray(total), 1.0, atol=1e-9)
+
+
+# ---------------------------------------------------------------- the ion-dynamics model
+
+
+def _without_feed(text: str) -> str:
+    return "\n".join(line for line in text.splitlines() if not line.lstrip().startswith("gas_feed_pa"))
+
+
+@pytest.fixture(scope="module")
+def coolant_reports() -> tuple[cc.Report, cc.Report]:
+    """The bundled coolant scenario as it is, and without its nitrogen feed."""
+    text = cc.bundled_scenarios()["coolant"].read_text(encoding="utf-8")
+    cooled = Scenario.from_text(text, "coolant.toml").run()
+    bare = Scenario.from_text(_without_feed(text), "bare.toml").run()
+    return cooled, bare
+
+
+Pair = tuple[cc.Report, cc.Report]
+
+
+def test_a_light_coolant_raises_the_heavy_targets_fraction(coolant_reports: Pair) -> None:
+    # Penetrante et al., Phys. Rev. A 43, 4861 (1991): a light coolant takes heat from the
+    # heavy ions and carries it away as it escapes (evaporative cooling), so the heavy ions
+    # stay cold and inside the beam and breed further. The expectation is qualitative: a
+    # gain in the target's end-time fraction, a lower temperature and a larger overlap.
+    cooled, bare = coolant_reports
+    q = 17
+    f = [r.target_evolution.fractions[-1, q] for r in (cooled, bare)]
+    assert f[0] > 1.3 * f[1], f
+    rows = [next(row for row in r.dynamics.target_rows if row.charge == q) for r in (cooled, bare)]
+    assert rows[0].temperature_ev < 0.7 * rows[1].temperature_ev
+    assert rows[0].overlap > rows[1].overlap
+    # Without the feed no nitrogen appears; with it, nitrogen ions are made and escape.
+    assert bare.dynamics.species == ["Ar"] and bare.dynamics.particles["fed"] == 0.0
+    n = next(sp for sp in cooled.dynamics.species_rows if sp.label == "N")
+    assert n.fed_only and n.ions > 0 and n.escape_per_s > 0
+    for r in (cooled, bare):
+        assert r.model == "dynamic"
+        assert r.dynamics.particle_balance < 1e-9 and r.dynamics.energy_balance < 1e-6
+
+
+def test_dynamic_report_parts_are_consistent(coolant_reports: Pair) -> None:
+    r = coolant_reports[0]
+    d = r.dynamics
+    q = 17
+    t = d.times_s
+    np.testing.assert_array_equal(t, r.scenario.times_s)
+    assert d.extraction_time_s == r.extraction_time_s
+    # The rows are the histories at the extraction time (here a grid time).
+    i = int(np.argmin(abs(t - d.extraction_time_s)))
+    row = next(row for row in d.target_rows if row.charge == q)
+    assert row.ions == pytest.approx(d.ions("Ar")[i, q], rel=1e-12)
+    assert row.temperature_ev == pytest.approx(d.temperatures_ev("Ar")[i, q], rel=1e-12)
+    assert row.escape_per_s == pytest.approx(d.escape_per_s("Ar")[i, q], rel=1e-12)
+    assert d.compensation == pytest.approx(d.compensation_history[i], rel=1e-12)
+    assert [row.charge for row in d.target_rows] == [15, 16, 17, 18]
+    # Fractions are the ion numbers normalised; ions per extraction follow from N.
+    n = d.ions("Ar")
+    np.testing.assert_allclose(r.target_evolution.fractions, n / n.sum(axis=1, keepdims=True), rtol=1e-12)
+    iso = r.ions.isotope_share
+    assert iso == pytest.approx(0.996035, rel=1e-4)  # 40Ar natural abundance (from memory: 99.60 %)
+    assert r.ions.target == pytest.approx(row.ions * iso, rel=1e-12)
+    assert r.ions.compensation == d.compensation
+    assert d.injected_atoms == 1e7 and d.gas_feed_pa == {"N2": 2e-9}
+    assert "heating" in d.processes and "ionization_heating" not in d.processes
+    with pytest.raises(cc.InvalidParameterError, match="the run holds Ar, N"):
+        d.ions("Kr")
+
+
+def test_every_report_names_its_model(report: cc.Report, coolant_reports: Pair) -> None:
+    assert report.model == "fixed" and report.dynamics is None
+    fixed = cc.report_text.render(report)
+    assert "ion model: fixed" in fixed and "Ion dynamics" not in fixed
+    d = json.loads(report.to_json())
+    assert d["model"] == "fixed" and "dynamics" not in d and d["scenario"]["source"]["model"] == "fixed"
+    cooled = coolant_reports[0]
+    text = cc.report_text.render(cooled)
+    for needle in (
+        "ion model: dynamic",
+        "Ion dynamics at",
+        "leaky-mode delivery of Ar17+",
+        "compensation",
+        "radial well depth",
+        "bookkeeping",
+        "N (fed gas)",
+        "the energy scan (best and robust energy) uses the fixed model",
+        "Cautions",
+    ):
+        assert needle in text, needle
+    d = json.loads(cooled.to_json())
+    assert d["model"] == "dynamic"
+    assert d["scenario"]["source"]["gas_feed_pa"] == {"N2": 2e-9}
+    dyn = d["dynamics"]
+    assert [row["charge"] for row in dyn["target_and_neighbours"]] == [15, 16, 17, 18]
+    assert dyn["bookkeeping"]["particle_balance"] < 1e-9
+
+
+def test_dynamic_figure_and_html(coolant_reports: Pair, tmp_path: Path) -> None:
+    pytest.importorskip("matplotlib")
+    import matplotlib
+
+    matplotlib.use("Agg")
+    r = coolant_reports[0]
+    files = r.save_plots(tmp_path)
+    assert [f.name for f in files][-1] == "ion_dynamics.png"
+    assert files[-1].read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    ax = cc.report_figures.plot_dynamics(r)
+    labels = [ln.get_label() for ln in ax.get_lines() if not ln.get_label().startswith("_")]
+    assert labels == ["Ar15+", "Ar16+", "Ar17+ (target)", "Ar18+"]
+    assert cc.report_figures.plot_dynamics(coolant_reports[1]) is not None
+    assert r._repr_html_().count("data:image/png;base64") == 4
