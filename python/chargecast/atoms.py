@@ -7,7 +7,7 @@ from typing import Any, Optional
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import as_float, as_float_array, as_int, restore
+from chargecast._util import as_float, as_float_array, as_int, require_type, restore
 
 Element = _core.Element
 Ion = _core.Ion
@@ -151,10 +151,7 @@ def _current_density(beam: Any, current_density_a_cm2: Optional[float]) -> float
 
         raise InvalidParameterError("give either beam or current_density_a_cm2, not both")
     if beam is not None:
-        from chargecast._core import ArgumentTypeError, ElectronBeam
-
-        if not isinstance(beam, ElectronBeam):
-            raise ArgumentTypeError(f"invalid beam: {type(beam).__name__} given, must be an ElectronBeam")
+        require_type("beam", beam, _core.ElectronBeam, "an ElectronBeam")
         return float(beam.current_density_a_cm2)
     if current_density_a_cm2 is None:
         from chargecast._core import InvalidParameterError

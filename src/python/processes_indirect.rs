@@ -9,8 +9,7 @@ use pyo3::prelude::*;
 use super::atoms::{constants, Arg};
 use super::convert::{array1_arg, float_arg, int_arg};
 use super::{element_arg, guard, to_py};
-use crate::atoms::Element;
-use crate::error::{require_all_positive, Result};
+use crate::error::require_all_positive;
 use crate::processes::dielectronic::{
     beam_cross_sections_cm2, rate_coefficient_cm3_s as dr_rate, resonances, DrResonance,
 };
@@ -19,12 +18,6 @@ use crate::processes::excitation_autoionization::{
     single_ionization_cross_sections_cm2,
 };
 use crate::processes::ion_lotz::ionizable_ion;
-
-/// The ion of `charge` (0 … Z) of `element`.
-fn any_ion(element: &'static Element, charge: i64) -> Result<crate::atoms::Ion> {
-    element.check_charge(charge, element.z())?;
-    element.ion(charge)
-}
 
 #[pyfunction]
 #[pyo3(signature = (element, charge, energies_ev, a=None, b=None, c=None))]
@@ -92,7 +85,7 @@ fn dielectronic_rate_coefficient_cm3_s<'py>(
     let temps = array1_arg("temperatures_ev", temperatures_ev)?;
     let charge = int_arg("charge", charge)?;
     let out = guard(py, || {
-        let ion = any_ion(el, charge)?;
+        let ion = el.ion(charge)?;
         temps.iter().map(|t| dr_rate(&ion, *t)).collect()
     })?;
     Ok(to_py(py, out))
@@ -112,7 +105,7 @@ fn dielectronic_cross_section_cm2<'py>(
     let spread = float_arg("energy_spread_ev", energy_spread_ev)?;
     let out = guard(py, || {
         require_all_positive("energies_ev", &energies)?;
-        beam_cross_sections_cm2(&any_ion(el, charge)?, &energies, spread)
+        beam_cross_sections_cm2(&el.ion(charge)?, &energies, spread)
     })?;
     Ok(to_py(py, out))
 }
@@ -195,7 +188,7 @@ fn dr_resonances<'py>(
     let el = element_arg(element)?;
     let charge = int_arg("charge", charge)?;
     let (ion, list) = guard(py, || {
-        let ion = any_ion(el, charge)?;
+        let ion = el.ion(charge)?;
         Ok((ion, resonances(&ion)))
     })?;
     let value = PyDrResonances {

@@ -303,14 +303,9 @@ impl Stepper {
     /// the half steps whose polynomials serve the outputs.
     fn dense_error(&self, v: &[f64], big: &[f64], mid: &[f64]) -> f64 {
         let basis = collocation_basis(0.5);
-        let mut err: f64 = 0.0;
-        for i in 0..v.len() {
-            let mut value = v[i] + basis[4] * (big[i] - v[i]);
-            for (j, stage) in self.stages[0].iter().enumerate() {
-                value += basis[j] * stage[i];
-            }
-            err = err.max((value - mid[i]).abs());
-        }
+        let err = (0..v.len())
+            .map(|i| (collocation_value(&basis, v, big, &self.stages[0], i) - mid[i]).abs())
+            .fold(0.0, f64::max);
         err / DENSE_HALVING
     }
 
@@ -323,14 +318,26 @@ impl Stepper {
             (mid, half, &self.stages[2], 2.0 * theta - 1.0)
         };
         let basis = collocation_basis(phi);
-        for i in 0..out.len() {
-            let mut value = start[i] + basis[4] * (end[i] - start[i]);
-            for (j, stage) in stages.iter().enumerate() {
-                value += basis[j] * stage[i];
-            }
-            out[i] = value;
+        for (i, o) in out.iter_mut().enumerate() {
+            *o = collocation_value(&basis, start, end, stages, i);
         }
     }
+}
+
+/// Component `i` of a step's collocation polynomial from its start, end and interior stage
+/// increments, with the basis of [`collocation_basis`].
+fn collocation_value(
+    basis: &[f64; 5],
+    start: &[f64],
+    end: &[f64],
+    stages: &[Vec<f64>; 4],
+    i: usize,
+) -> f64 {
+    let mut value = start[i] + basis[4] * (end[i] - start[i]);
+    for (b, stage) in basis.iter().zip(stages) {
+        value += b * stage[i];
+    }
+    value
 }
 
 /// Lagrange basis of the nodes 0, c₁…c₄, 1 at φ, without the node 0 (the increments are
