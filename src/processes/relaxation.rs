@@ -617,7 +617,7 @@ impl Cascade {
         outer
             .into_iter()
             .filter_map(|t| {
-                let mut double = single.clone();
+                let mut double = single;
                 double[t] += 1;
                 let e2 = self.energy(&double);
                 let ramp = if excitation_ev == f64::INFINITY {
