@@ -13,6 +13,7 @@ pub mod double_ionization;
 pub mod escape;
 pub mod excitation_autoionization;
 pub mod gases;
+pub mod henke;
 pub mod ion_collisions;
 pub mod ion_lotz;
 pub mod kramers;

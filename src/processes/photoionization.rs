@@ -1,6 +1,6 @@
 //! Photoionization cross sections of every occupied subshell of every ion.
 //!
-//! Three models, chosen per subshell:
+//! Four models, chosen per subshell:
 //!
 //! * **Verner fit** for the outermost subshell of the ions that [`super::verner`] holds
 //!   (Verner et al. 1996: every ion of Z = 1–14, 16, 18, 20, 26), up to the fit's upper
@@ -8,11 +8,24 @@
 //!   measured table below stays in charge); one-electron ions keep the exact result. This replaces the hydrogenic model where it was
 //!   weakest: just above the first threshold He 0.94 → 0.97, Ne 2.3 → 1.07 and Ar 0.39 →
 //!   0.89 times the measured values (Samson 1966, Marr & West 1976, from memory;
-//!   `tests/verner.rs`). Heavier atoms (Kr, Xe …) keep the hydrogenic model below 100 eV.
-//! * **Tabulated** (photon energies that map to ≥ 100 eV on the neutral atom): the neutral
-//!   atom's photoabsorption (Elam, Ravel & Sieber, Radiat. Phys. Chem. 63, 121 (2002), via
-//!   xraydb) is shared among subshells by the edge jump ratios J — just above edge s, that
-//!   edge takes (J_s − 1)/J_s of what the deeper edges left; the rest goes to the shallower
+//!   `tests/verner.rs`).
+//! * **Henke table** ([`super::henke`]) for the neutral atoms of the elements without Verner
+//!   fits (Z = 15, 17, 19, 21–25, 27–30, 31–92) from their first ionization energy (or
+//!   Henke's first energy, 10 eV for most, above it) to 100 eV, blended log-linearly into
+//!   the Elam table over 100–200 eV ([`neutral_photoabsorption_cm2`]); it is shared among
+//!   subshells and scaled to the ions exactly as the Elam table below. Xe comes out 1.01,
+//!   0.69 and 1.03 times the measured total at 20, 50 and 100 eV (35, 2 and 26 Mb, Marr &
+//!   West 1976 and West & Morton 1978, from memory; the hydrogenic model gave 0.07 at 20 eV
+//!   and 0.15 at 100 eV), 0.98 at 1.05 × threshold but 0.23 at 1.02 × (Henke's values rise
+//!   from 10 Mb at 12.32 eV to 44 Mb at 12.72 eV, more slowly than measured); Kr at 15
+//!   and 20 eV 1.01 and 1.03 times 37 Mb (Marr & West 1976, from memory; `tests/henke.rs`).
+//!   **Ions of these elements** use the binding-energy scaling of the tabulated route (the
+//!   neutral subshell share at E·B₀/B_q): a documented estimate, not checked against
+//!   measured ion cross sections (none embedded). Xe⁺ at 25–30 eV comes out 31–33 Mb.
+//! * **Tabulated** (photon energies that map to ≥ 100 eV on the neutral atom, or onto the
+//!   Henke table): the neutral atom's photoabsorption (Elam, Ravel & Sieber, Radiat. Phys.
+//!   Chem. 63, 121 (2002), via xraydb; below 200 eV the Henke table above where it applies)
+//!   is shared among subshells by the edge jump ratios J — just above edge s, that edge takes (J_s − 1)/J_s of what the deeper edges left; the rest goes to the shallower
 //!   subshells (the jump-ratio rule of X-ray fluorescence analysis). Valence subshells without
 //!   a tabulated jump share the last remainder in proportion to their hydrogenic cross
 //!   sections. For ion q each subshell is scaled hydrogenically with its binding energy,
@@ -26,7 +39,7 @@
 //!   exact (neutral atom: the table; one-electron ion: Stobbe); in between this is our own
 //!   interpolation, in the spirit of the binding-energy rule of [`crate::atoms::binding`].
 //!   Above 800 keV the table is extended log–log from its last two points.
-//! * **Hydrogenic** (below that, above Z = 98, or for subshells empty in the neutral atom):
+//! * **Hydrogenic** (below the tables, above Z = 98, or for subshells empty in the neutral atom):
 //!   per electron, the exact non-relativistic hydrogenic 1s result of Stobbe (Ann. Phys. 7,
 //!   661 (1930); Bethe & Salpeter, *Quantum Mechanics of One- and Two-Electron Atoms*, 1957)
 //!   for n = 1 and Kramers' formula ([`kramers_photoionization_cross_section_cm2`]) for n ≥ 2,
@@ -40,17 +53,25 @@
 //! Photon energies from the first ionization energy up; single photoionization only (no
 //! shake-off, no resonances, no multi-photon absorption). Measured (`tests/photon.rs`,
 //! `tests/python/test_photon.py`): the tabulated model reproduces the Elam totals of
-//! neutral atoms at the table's own points to 10⁻⁹ (by construction), and between them
+//! neutral atoms at the table's own points to 10⁻⁹ (by construction; from 200 eV for the
+//! elements with a Henke table, whose own values it reproduces below 100 eV, checked against
+//! `periodictable`'s f₂ in `tests/python/test_photon.py`), and between them
 //! (xraydb `mu_elam`, random energies away from edges) with a median deviation below 0.5 %
 //! and at most 10 %; the Elam table of neutral hydrogen agrees with the exact Stobbe result
 //! within 5 % at 0.1–10 keV; for H-like ions (He … Kr, threshold to 30 × threshold) the
 //! blended model stays within 30 % of Stobbe, and the hydrogen threshold value is exact
 //! within 0.2 %. The hydrogenic model is exact for H-like 1s; for many-electron atoms it is
-//! a factor-of-several estimate (see [`super::kramers`] for the measured figures).
+//! a factor-of-several estimate (see [`super::kramers`] for the measured figures). Every
+//! model gives zero below the ion's ionization energy (no subshell open; `tests/henke.rs`
+//! checks it at 0.999 × the first ionization energy of q = 0, 1, 3 of every Henke element)
+//! and is continuous at 100 and 200 eV where the Henke and Elam tables meet (to 10⁻⁶).
 
 use crate::atoms::{neutral_photoabsorption, Element, Ion, Subshell};
 use crate::constants::{ALPHA, BOHR_RADIUS_M, RYDBERG_EV};
 use crate::error::{require_all_positive, require_positive, Result};
+use crate::processes::henke::{
+    henke_photoabsorption, JOIN_END_EV as HENKE_END_EV, JOIN_START_EV as HENKE_START_EV,
+};
 use crate::processes::kramers::kramers_photoionization_cross_section_cm2;
 use crate::processes::verner::verner_fit;
 
@@ -159,13 +180,30 @@ fn interpolate_loglog(table: &[(f64, f64)], e: f64) -> Option<f64> {
     Some((lo.1.ln() + t * (hi.1 / lo.1).ln()).exp())
 }
 
-/// The neutral atom's photoabsorption (cm²) at `photon_energy_ev` from the Elam table;
-/// None below 100 eV or where no table exists (Z > 98).
+/// The neutral atom's photoabsorption (cm²) at `photon_energy_ev`: the Elam table from
+/// 100 eV, and for the elements of [`super::henke`] the Henke table below 100 eV, blended
+/// log-linearly into Elam over 100–200 eV. None below the tables or where none exists
+/// (Z > 98; below 100 eV for the elements with Verner fits).
 pub fn neutral_photoabsorption_cm2(
     element: &Element,
     photon_energy_ev: f64,
 ) -> Result<Option<f64>> {
-    Ok(neutral_photoabsorption(element.z())?.and_then(|t| interpolate_loglog(t, photon_energy_ev)))
+    let e = photon_energy_ev;
+    let elam = neutral_photoabsorption(element.z())?.and_then(|t| interpolate_loglog(t, e));
+    if e >= HENKE_END_EV {
+        return Ok(elam);
+    }
+    let Some(henke) = henke_photoabsorption(element.z())?.and_then(|t| interpolate_loglog(t, e))
+    else {
+        return Ok(elam);
+    };
+    Ok(Some(match elam {
+        Some(elam) if e > HENKE_START_EV => {
+            let w = (e / HENKE_START_EV).ln() / (HENKE_END_EV / HENKE_START_EV).ln();
+            henke.powf(1.0 - w) * elam.powf(w)
+        }
+        _ => henke,
+    }))
 }
 
 /// The neutral atom's photoabsorption shared among its occupied subshells by the jump-ratio
@@ -294,30 +332,24 @@ pub fn subshell_cross_sections_cm2(
         {
             let ratio = n0.binding_ev / s.binding_ev;
             let scaled_ev = photon_energy_ev * ratio;
-            if scaled_ev >= TABLE_MIN_EV {
-                if memo.as_ref().is_none_or(|(at, _)| *at != scaled_ev) {
-                    memo = Some((scaled_ev, neutral_subshell_shares_cm2(element, scaled_ev)?));
-                }
-                if let Some(shares) = memo.as_ref().and_then(|(_, s)| s.as_ref()) {
-                    let share = shares
-                        .iter()
-                        .find(|(t, _)| *t == s.subshell)
-                        .map_or(0.0, |p| p.1);
-                    result.model = PhotoModel::Tabulated;
-                    // The share is zero below the subshell's lowest (spin–orbit) edge, which
-                    // can lie a few eV under its merged, 2j+1-weighted binding energy; the
-                    // hydrogenic part is zero below that binding energy.
-                    let tabulated =
-                        share * ratio * f64::from(s.occupancy) / f64::from(n0.occupancy);
-                    let hydrogenic = f64::from(s.occupancy)
-                        * hydrogenic_cross_section_cm2(
-                            s.subshell.n,
-                            s.binding_ev,
-                            photon_energy_ev,
-                        );
-                    let f = stripped_fraction(ion);
-                    result.cross_section_cm2 = (1.0 - f) * tabulated + f * hydrogenic;
-                }
+            // The shares are None below the neutral tables (100 eV, or Henke's first energy).
+            if memo.as_ref().is_none_or(|(at, _)| *at != scaled_ev) {
+                memo = Some((scaled_ev, neutral_subshell_shares_cm2(element, scaled_ev)?));
+            }
+            if let Some(shares) = memo.as_ref().and_then(|(_, s)| s.as_ref()) {
+                let share = shares
+                    .iter()
+                    .find(|(t, _)| *t == s.subshell)
+                    .map_or(0.0, |p| p.1);
+                result.model = PhotoModel::Tabulated;
+                // The share is zero below the subshell's lowest (spin–orbit) edge, which
+                // can lie a few eV under its merged, 2j+1-weighted binding energy; the
+                // hydrogenic part is zero below that binding energy.
+                let tabulated = share * ratio * f64::from(s.occupancy) / f64::from(n0.occupancy);
+                let hydrogenic = f64::from(s.occupancy)
+                    * hydrogenic_cross_section_cm2(s.subshell.n, s.binding_ev, photon_energy_ev);
+                let f = stripped_fraction(ion);
+                result.cross_section_cm2 = (1.0 - f) * tabulated + f * hydrogenic;
             }
         }
         if result.model == PhotoModel::Hydrogenic {
