@@ -161,6 +161,14 @@ fn bad_values_name_the_key_and_what_is_allowed() {
         m.contains("plasma.confinement_time_s") && m.contains("> 0"),
         "{m}"
     );
+    // A wrong type says what is expected.
+    let m = message(&BUNDLED.replace("confinement_time_s = 1e-3", "confinement_time_s = \"x\""));
+    assert!(
+        m.contains(&line("confinement_time_s"))
+            && m.contains("expected a number")
+            && m.contains("array"),
+        "{m}"
+    );
     // An unknown key lists the allowed ones.
     let m = message(&BUNDLED.replace("wall_recycling", "wall_recycle"));
     assert!(

@@ -102,7 +102,7 @@ pub(crate) struct RawPlasma {
 #[derive(Debug, Deserialize)]
 #[serde(
     untagged,
-    expecting = "a number (s) or an array of numbers, one per charge 1, 2, …"
+    expecting = "expected a number (τ₁, s) or an array of numbers (one time per charge 1, 2, …)"
 )]
 pub(crate) enum OneOrMany {
     One(f64),
