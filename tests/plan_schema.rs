@@ -14,17 +14,19 @@ const REFERENCE: &str = include_str!("../python/chargecast/scenarios/reference.t
 
 /// Tables of the schema as the parser knows them (`""` is the top level). A map table
 /// (`residual_gas_pa`, keyed by gas formula) has no fixed fields and is left out here.
-const TABLES: [&str; 10] = [
+const TABLES: [&str; 12] = [
     "",
     "target",
     "species",
     "beam_trap",
     "photon_beam",
     "electron_impact",
+    "plasma",
     "time",
     "energy_scan",
     "separator",
     "injection",
+    "uncertainty",
 ];
 
 type Fields = BTreeMap<String, BTreeSet<String>>;

@@ -115,7 +115,7 @@ from chargecast.scenario import Report, Scenario, bundled_scenarios, load_scenar
 
 # --- fits and Monte Carlo bands (cluster runs: chargecast.dask, imported on use)
 # isort: split
-from chargecast.fit import FitResult, TrapFitModel, fit_charge_distribution
+from chargecast.fit import FitResult, PlasmaFitModel, TrapFitModel, fit_charge_distribution
 from chargecast.uncertainty import EvolutionBands, best_energy_band
 
 __version__: str = _core.__version__
@@ -193,6 +193,7 @@ __all__ = [
     "radiative_recombination_rate_coefficient_cm3_s",
     "EvolutionBands",
     "FitResult",
+    "PlasmaFitModel",
     "TrapFitModel",
     "best_energy_band",
     "fit_charge_distribution",

@@ -9,10 +9,13 @@ charge-state distribution. It has
   (in one batch, so the core evolves the variants in parallel with the GIL released);
 * ``ions_scale(point)`` (optional) — ions per unit fraction, for measured currents.
 
-``TrapFitModel`` wraps a ``BeamTrap`` (the fixed model) at one confinement time. A plasma
-source plugs in the same way: a ``PlasmaFitModel`` whose parameters are
-``electron_temperature_ev`` and ``ne_tau_s_cm3`` (n_e·τ), rebuilding the source for each
-point and returning its steady state or evolution — nothing below needs to change.
+``TrapFitModel`` wraps a ``BeamTrap`` (the fixed model) at one confinement time.
+``PlasmaFitModel`` wraps a ``PlasmaSource``: its parameters are ``electron_temperature_ev``
+(the cold kT_e), ``ne_tau_s_cm3`` (n_e·τ₁, varied through n_e at the source's τ₁),
+``electron_density_cm3``, ``confinement_time_s`` (τ₁ of the scaling) and
+``hot_electron_fraction``; it rebuilds the source for each point and returns the charge
+distribution of the extracted beam at steady state, F_q ∝ n_q/τ_q (what an analysing
+magnet measures; the extracted current is then ∝ q·F_q, as the current fit assumes).
 
 The optimiser is ``scipy.optimize.least_squares`` (trust-region reflective, bounds
 honoured; optional extra ``chargecast[fit]``). Parameters that span decades (current
@@ -45,6 +48,15 @@ TRAP_PARAMETERS: dict[str, tuple[bool, str]] = {
     "pressure_pa": (True, "Pa"),
     "ion_temperature_ev": (True, "eV"),
     "compensation": (False, "1"),
+}
+
+#: Parameters of the plasma model, whether they are fitted in log10, and their unit.
+PLASMA_PARAMETERS: dict[str, tuple[bool, str]] = {
+    "electron_temperature_ev": (True, "eV"),
+    "ne_tau_s_cm3": (True, "s/cm³"),
+    "electron_density_cm3": (True, "cm⁻³"),
+    "confinement_time_s": (True, "s"),
+    "hot_electron_fraction": (False, "1"),
 }
 
 #: Condition number of JᵀJ above which the fit is called degenerate.
@@ -194,6 +206,117 @@ class TrapFitModel:
     def ions_scale(self, point: Mapping[str, float]) -> float:
         """Ions per extraction per unit fraction is not a constant of the fixed model; the
         current fit profiles an overall scale instead, so this returns 1."""
+        return 1.0
+
+
+class PlasmaFitModel:
+    """A plasma source's extracted beam at steady state as a fit model (see the module
+    documentation): fractions F_q = (n_q/τ_q) / Σ_q' (n_q'/τ_q') of the ions leaving, q ≥ 1.
+
+    Parameters
+    ----------
+    source : PlasmaSource
+        The nominal source (every setting not fitted is kept; the confinement must be the
+        scaling τ_q = τ₁·q^α to fit ``confinement_time_s`` or ``ne_tau_s_cm3``).
+    element : str or int
+        One of the source's elements.
+
+    Examples
+    --------
+    >>> import chargecast as cc
+    >>> src = cc.PlasmaSource(electron_temperature_ev=1500.0, electron_density_cm3=2e11,
+    ...                       confinement_time_s=1e-3, gas_feed_pa={"Ar": 7e-7})
+    >>> model = cc.PlasmaFitModel(src, "Ar")
+    >>> f = model.evaluate([{"electron_temperature_ev": 3000.0}])
+    >>> f.shape, round(float(f[0].sum()), 12)
+    ((1, 19), 1.0)
+    """
+
+    def __init__(self, source: Any, element: Any):
+        from chargecast.plasma import PlasmaSource
+
+        require_type("source", source, _core.PlasmaSource, "a PlasmaSource")
+        self._class = PlasmaSource
+        self.source = source
+        el = _core.element(element)
+        if el.symbol not in source.elements:
+            raise _core.InvalidParameterError(
+                f"invalid element {el.symbol!r}: allowed one of the source's elements "
+                f"{', '.join(source.elements)}"
+            )
+        self.element = el.symbol
+        self.z = int(el.z)
+
+    def _settings(self) -> dict[str, Any]:
+        s = self.source
+        return {
+            "electron_temperature_ev": s.electron_temperature_ev,
+            "electron_density_cm3": s.electron_density_cm3,
+            "confinement_time_s": s.confinement_time_s,
+            "confinement_exponent": s.confinement_exponent,
+            "gas_feed_pa": dict(s.gas_feed_pa),
+            "residual_gas_pa": dict(s.residual_gas_pa),
+            "hot_electron_temperature_ev": s.hot_electron_temperature_ev,
+            "hot_electron_fraction": s.hot_electron_fraction,
+            "ion_temperature_ev": s.ion_temperature_ev,
+            "gas_temperature_k": s.gas_temperature_k,
+            "neutral_residence_time_s": s.neutral_residence_time_s,
+            "wall_recycling": s.wall_recycling,
+            "plasma_volume_m3": s.plasma_volume_m3,
+            "extraction_fraction": s.extraction_fraction,
+        }
+
+    def _tau1_s(self) -> float | None:
+        tau = self.source.confinement_time_s
+        return float(tau) if self.source.confinement_exponent is not None else None
+
+    def parameters(self) -> dict[str, float]:
+        """Nominal value of every parameter this model can vary."""
+        s = self.source
+        out = {
+            "electron_temperature_ev": s.electron_temperature_ev,
+            "electron_density_cm3": s.electron_density_cm3,
+            "hot_electron_fraction": s.hot_electron_fraction,
+        }
+        tau1 = self._tau1_s()
+        if tau1 is not None:
+            out["confinement_time_s"] = tau1
+            out["ne_tau_s_cm3"] = s.electron_density_cm3 * tau1
+        return out
+
+    def log_scaled(self, name: str) -> bool:
+        """Whether ``name`` is fitted in log10."""
+        return PLASMA_PARAMETERS[name][0]
+
+    def _source(self, point: Mapping[str, float]) -> Any:
+        if "ne_tau_s_cm3" in point and "electron_density_cm3" in point:
+            raise _core.InvalidParameterError(
+                "invalid free parameters: ne_tau_s_cm3 and electron_density_cm3 together "
+                "(n_e·τ fixes n_e at the model's τ₁; free one of them)"
+            )
+        s = self._settings()
+        for name in ("electron_temperature_ev", "electron_density_cm3", "hot_electron_fraction"):
+            if name in point:
+                s[name] = float(point[name])
+        if "confinement_time_s" in point:
+            s["confinement_time_s"] = float(point["confinement_time_s"])
+        if "ne_tau_s_cm3" in point:
+            s["electron_density_cm3"] = float(point["ne_tau_s_cm3"]) / float(s["confinement_time_s"])
+        return self._class(**s)
+
+    def evaluate(self, points: Sequence[Mapping[str, float]]) -> np.ndarray:
+        """Extracted-beam fractions ``[len(points), Z+1]`` at each point (0 for the neutral)."""
+        out = np.zeros((len(points), self.z + 1))
+        for i, pt in enumerate(points):
+            state = self._source(pt).steady_state(self.element)
+            q = np.arange(self.z + 1)
+            flux = np.where(q > 0, state.currents_eua / np.maximum(q, 1), 0.0)
+            total = flux.sum()
+            out[i] = flux / total if total > 0 else flux
+        return out
+
+    def ions_scale(self, point: Mapping[str, float]) -> float:
+        """The current fit profiles an overall scale, so this returns 1."""
         return 1.0
 
 

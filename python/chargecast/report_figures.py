@@ -19,6 +19,7 @@ from chargecast._util import PALETTE, require_pyplot
 from chargecast.report_text import source_line
 
 __all__ = [
+    "plot_analysed_beam",
     "plot_dynamics",
     "plot_energy_map",
     "plot_evolution",
@@ -86,7 +87,16 @@ def plot_evolution(report: Any, ax: Any | None = None) -> Any:
     # Rows: every state that reaches 1 %, and a few either side of the target.
     shown = set(evo.dominant_charges(0.01)) | set(range(max(0, q - 3), min(evo.z, q + 3) + 1))
     evo.plot(ax=ax, charges=sorted(shown), target=q, time_label=label)
+    _shade_band(report, ax)
     t_ex = report.extraction_time_s
+    if t_ex is None:
+        # A plasma extracts continuously: its evolution is the switch-on.
+        ax.set_title(
+            f"{evo.element} charge states after switch-on, target {q}+ framed ({source_line(report)})",
+            fontsize=10,
+            pad=16,
+        )
+        return ax
     ax.axvline(t_ex, color="white", lw=1.2, ls=":")
     ax.annotate(
         f"extraction {t_ex:.3g} s",
@@ -102,6 +112,23 @@ def plot_evolution(report: Any, ax: Any | None = None) -> Any:
         f"{evo.element} charge states, target {q}+ framed ({source_line(report)})", fontsize=10, pad=16
     )
     return ax
+
+
+def _shade_band(report: Any, ax: Any) -> None:
+    """The ``[uncertainty]`` band (5–95 %) of the target's fraction, shaded in the side
+    panel of the evolution figure, its median dashed."""
+    u = report.uncertainty
+    if u is None or not ax.child_axes:
+        return
+    side = ax.child_axes[0]
+    t = np.asarray(report.target_evolution.times_s)
+    lo, mid, hi = np.asarray(u.target_fraction)
+    ok = t > 0
+    q = int(report.scenario.target.charge)
+    label = f"{q}+: 5–95 % of {u.samples} samples"
+    side.fill_between(t[ok], lo[ok], hi[ok], color=PALETTE[3], alpha=0.25, lw=0, label=label)
+    side.plot(t[ok], mid[ok], color="black", lw=0.8, ls=":", label="median")
+    side.legend(fontsize=6, loc="upper left", frameon=False)
 
 
 def plot_yields(report: Any, ax: Any | None = None) -> Any:
@@ -169,7 +196,7 @@ def plot_ladder(report: Any, ax: Any | None = None) -> Any:
     if ax_s is not None:
         ok = sigma > 0
         ax_s.semilogy(charge[ok], sigma[ok], "o-", color=PALETTE[0], ms=3, lw=1)
-        what = "photoionization σ" if kind == "photon_beam" else "Lotz σ"
+        what = {"photon_beam": "photoionization σ", "plasma": "Maxwellian ⟨σv⟩/⟨v⟩"}.get(kind, "Lotz σ")
         ax_s.set_ylabel(f"{what} of step\n(q−1)+ → q+ (cm²)")
         if ax is None:
             ax_s.set_xlabel("charge state q")
@@ -179,6 +206,7 @@ def plot_ladder(report: Any, ax: Any | None = None) -> Any:
             "beam_trap": f"stepwise breeding of {sym} at {e:.5g} eV, {j or 0:.4g} A/cm² (ionization only)",
             "photon_beam": f"stepwise photoionization of {sym} at {e:.5g} eV (one charge per photon)",
             "electron_impact": f"ionization steps of {sym}: Lotz cross sections at {e:.5g} eV",
+            "plasma": f"stepwise ionization of {sym} in the plasma, kT_e {e:.5g} eV (ionization only)",
         }[kind]
         ax_s.set_title(title, fontsize=10)
         from matplotlib.ticker import MaxNLocator
@@ -232,7 +260,11 @@ def plot_energy_map(report: Any, ax: Any | None = None) -> Any:
     ax = _energy_scan(report).plot(ax=ax)
     if src.kind == "photon_beam":
         ax.set_xlabel("exposure time (s)")
-    energy = src.energy_ev if src.energy_ev is not None else src.photon_energy_ev
+    if src.kind == "plasma":
+        ax.set_xlabel("time after switch-on (s)")
+        ax.set_ylabel("cold electron temperature kT_e (eV)")
+    own = (src.energy_ev, src.photon_energy_ev, src.electron_temperature_ev)
+    energy = next(e for e in own if e is not None)
     ax.axhline(energy, color="white", lw=1, ls="--")
     ax.annotate(
         f"scenario: {energy:.4g} eV",
@@ -344,6 +376,39 @@ def plot_spectrum(report: Any, ax: Any | None = None) -> Any:
     ax.set_ylim(0.0, 1.12 * max(top, ymax, 1e-300))
     ax.legend(fontsize=8, frameon=False, loc="upper left", bbox_to_anchor=(1.0, 1.0))
     ax.set_title(f"A/q neighbourhood of {o.target} at R = {r:g}", fontsize=10)
+    if report.plasma is not None:
+        ax.set_ylabel("extracted current (eµA)")
+    return ax
+
+
+def plot_analysed_beam(report: Any, ax: Any | None = None) -> Any:
+    """A plasma source's analysed beam: extracted current (eµA) against A/q over every line
+    (fed, mixing and residual gas) at the separator's resolving power, the target marked.
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    lines = _line_list(report)
+    s = report.scenario
+    r = float(s.separator.resolving_power)
+    a_q = lines.m_over_q
+    lo, hi = float(np.min(a_q)) * (1 - 5 / r), float(np.max(a_q)) * (1 + 5 / r)
+    ax = lines.plot(
+        ax=ax,
+        resolving_power=r,
+        target=(s.target.isotope, int(s.target.charge)) if report.neighbourhood is not None else None,
+        shape=s.separator.peak_shape,
+        m_over_q_range=(lo, hi),
+    )
+    ymax = float(np.max(lines.intensity)) if len(lines.intensity) else 0.0
+    for text in list(ax.texts):
+        xy = getattr(text, "xy", None)
+        if xy is not None and xy[1] < 0.05 * ymax:
+            text.remove()
+    ax.set_ylabel("extracted current (eµA)")
+    ax.set_title(f"analysed beam at R = {r:g} ({source_line(report)})", fontsize=10)
+    ax.legend(fontsize=8, frameon=False, loc="upper left", bbox_to_anchor=(1.0, 1.0))
     return ax
 
 
@@ -444,7 +509,8 @@ def save_plots(report: Any, directory: str | os.PathLike, dpi: int = 120) -> lis
     -------
     list of pathlib.Path
         ``evolution.png``, ``breeding_ladder.png``, ``energy_time_map.png``, ``aq_spectrum.png``,
-        and ``ion_dynamics.png`` for a report of the dynamic model.
+        ``ion_dynamics.png`` for a report of the dynamic model, ``analysed_beam.png`` for
+        a plasma source.
     """
     plt = require_pyplot()
     out = Path(directory)
@@ -458,6 +524,8 @@ def save_plots(report: Any, directory: str | os.PathLike, dpi: int = 120) -> lis
     ]
     if report.dynamics is not None:
         figures.append(("ion_dynamics", plot_dynamics))
+    if report.plasma is not None:
+        figures.append(("analysed_beam", plot_analysed_beam))
     for name, plot in figures:
         if name in ("breeding_ladder", "ion_dynamics"):
             ax = plot(report)

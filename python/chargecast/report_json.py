@@ -34,6 +34,21 @@ _SOURCE_FIELDS = {
     ),
     "photon_beam": ("photon_energy_ev", "flux_cm2_s", "bandwidth_ev"),
     "electron_impact": ("energy_ev", "energy_spread_ev"),
+    "plasma": (
+        "electron_temperature_ev",
+        "hot_electron_temperature_ev",
+        "hot_electron_fraction",
+        "electron_density_cm3",
+        "ion_temperature_ev",
+        "confinement_time_s",
+        "confinement_exponent",
+        "gas_feed_pa",
+        "gas_temperature_k",
+        "neutral_residence_time_s",
+        "wall_recycling",
+        "plasma_volume_m3",
+        "extraction_fraction",
+    ),
 }
 # The beam trap's fields that only the dynamic model takes.
 _DYNAMIC_FIELDS = (
@@ -226,6 +241,19 @@ def to_dict(report: Any) -> dict[str, Any]:
         }
     if r.dynamics is not None:
         out["dynamics"] = _dynamics(r.dynamics)
+    if r.plasma is not None:
+        out["plasma"] = _plasma(r.plasma)
+    u = r.uncertainty
+    if u is not None:
+        out["uncertainty"] = {
+            "samples": u.samples,
+            "seed": u.seed,
+            "factors": u.factors,
+            "percentiles": [5, 50, 95],
+            "peak_time_s": list(u.peak_time_s),
+            "peak_fraction": list(u.peak_fraction),
+            "ions_per_extraction": list(u.ions_per_extraction),
+        }
     o = r.neighbourhood
     out["aq_neighbourhood"] = None if o is None else _neighbourhood(o)
     out["charge_state_ranking"] = [
@@ -233,6 +261,36 @@ def to_dict(report: Any) -> dict[str, Any]:
         for rk in r.ranking
     ]
     return _jsonable(out)
+
+
+def _plasma(p: Any) -> dict[str, Any]:
+    """The plasma's steady state: per element the fractions and extracted currents (eµA)
+    by charge, the target's current and the steady-state temperature scan."""
+    return {
+        "electron_density_cm3": p.electron_density_cm3,
+        "ion_charge_density_cm3": p.ion_charge_density_cm3,
+        "isotope_share": p.isotope_share,
+        "target_current_eua": p.target_current_eua,
+        "elements": [
+            {
+                "symbol": e.symbol,
+                "residual_gas": e.residual,
+                "atom_density_cm3": e.atom_density_cm3,
+                "mean_ion_charge": e.mean_ion_charge,
+                "total_current_eua": e.total_current_eua,
+                "fractions": {f"{q}+": float(f) for q, f in enumerate(e.fractions) if f > 0},
+                "currents_eua": {f"{q}+": float(i) for q, i in enumerate(e.currents_eua) if q > 0 and i > 0},
+            }
+            for e in p.elements
+        ],
+        "temperature_scan": {
+            "electron_temperature_ev": [float(t) for t in p.scan_temperatures_ev],
+            "target_fraction": [float(f) for f in p.scan_target_fraction],
+            "target_current_eua": [float(i) for i in p.scan_target_current_eua],
+            "best_temperature_ev": p.best_temperature_ev,
+            "best_current_eua": p.best_current_eua,
+        },
+    }
 
 
 def _neighbourhood(o: Any) -> dict[str, Any]:

@@ -18,6 +18,7 @@ SOURCE_NAMES = {
     "beam_trap": "electron-beam trap",
     "photon_beam": "photon beam",
     "electron_impact": "single-collision electron source",
+    "plasma": "plasma ion source",
 }
 
 #: How each model of the evolution is named in prose (keys: ``Report.model``).
@@ -28,6 +29,11 @@ MODEL_NAMES = {
         "overlap with the beam, space charge; Penetrante et al. 1991)"
     ),
     "single_collision": "single collision (partial cross sections of one electron impact)",
+    "plasma_balance": (
+        "plasma_balance (zero-dimensional particle balance: Maxwellian Lotz and "
+        "excitation-autoionization, Kim-Pratt and Burgess recombination, Müller-Salzborn "
+        "charge exchange, confinement τ_q; continuous extraction)"
+    ),
 }
 
 
@@ -58,6 +64,8 @@ def source_line(report: Any) -> str:
         )
     if src.kind == "photon_beam":
         return f"{src.photon_energy_ev:.5g} eV photons, {src.flux_cm2_s:.3g} cm⁻² s⁻¹"
+    if src.kind == "plasma":
+        return f"plasma kT_e {src.electron_temperature_ev:.5g} eV, n_e {src.electron_density_cm3:.3g} cm⁻³"
     return f"{src.energy_ev:.5g} eV electrons, single collision"
 
 
@@ -111,8 +119,10 @@ class _TextReport:
         out += self.evolution()
         out += self.best_energy()
         out += self.ions()
+        out += self.uncertainty()
         out += self.injection()
         out += self.dynamics()
+        out += self.plasma()
         out += self.neighbourhood()
         out += self.recommendation()
         if r.warnings:
@@ -136,6 +146,29 @@ class _TextReport:
             )
         elif src.kind == "photon_beam":
             out.append(f"  photons {src.photon_energy_ev:.6g} eV, flux {src.flux_cm2_s:.4g} cm⁻² s⁻¹")
+        elif src.kind == "plasma":
+            hot = (
+                f", hot {src.hot_electron_temperature_ev:.5g} eV × {src.hot_electron_fraction:.3g}"
+                if src.hot_electron_temperature_ev is not None and src.hot_electron_fraction > 0
+                else ""
+            )
+            tau = src.confinement_time_s
+            conf = (
+                f"τ_q = {tau[0]:.3g} s · q^{src.confinement_exponent:g}"
+                if src.confinement_exponent is not None
+                else f"τ_q given for q = 1 … {len(tau)} ({tau[0]:.3g} … {tau[-1]:.3g} s)"
+            )
+            feed = ", ".join(f"{k} {v:.3g} Pa" for k, v in src.gas_feed_pa.items())
+            out.append(
+                f"  electrons kT_e {src.electron_temperature_ev:.5g} eV{hot}, "
+                f"n_e {src.electron_density_cm3:.3g} cm⁻³; "
+                f"ions kT_i {src.ion_temperature_ev:.3g} eV; confinement {conf}"
+            )
+            out.append(
+                f"  gas fed: {feed}; neutral residence {src.neutral_residence_time_s:.3g} s, "
+                f"wall recycling {src.wall_recycling:.3g}; volume {src.plasma_volume_m3 * 1e6:.4g} cm³, "
+                f"extraction fraction {src.extraction_fraction:.3g}"
+            )
         else:
             out.append(f"  electrons {src.energy_ev:.6g} eV, spread {src.energy_spread_ev:.4g} eV")
         out.append(f"  ion model: {MODEL_NAMES[r.model]}")
@@ -148,8 +181,10 @@ class _TextReport:
                 f"{d.injected_atoms:.3e} atoms injected at t = 0; gas fed: {feed}"
             )
             out.append("  dynamic processes on: " + (", ".join(d.processes) or "none"))
+        unit, fmt = (" cm⁻³", ".4g") if src.kind == "plasma" else ("", "g")
         species = ", ".join(
-            f"{sp.name} ×{sp.amount:g}" + (f" (enters {sp.initial_charge}+)" if sp.initial_charge else "")
+            f"{sp.name} ×{sp.amount:{fmt}}{unit}"
+            + (f" (enters {sp.initial_charge}+)" if sp.initial_charge else "")
             for sp in s.species
         )
         out.append(f"  species: {species}")
@@ -181,6 +216,12 @@ class _TextReport:
                 "(one charge per photon: an upper bound on the time)"
             )
             sigma_name, time_name = "σ photo (cm²)", "time (s)"
+        elif kind == "plasma":
+            head = (
+                f"Stepwise ionization of {sym} in the plasma's electrons (cold kT_e {e:.6g} eV, "
+                f"n_e {s.source.electron_density_cm3:.3g} cm⁻³; ionization only: a lower bound on the time)"
+            )
+            sigma_name, time_name = "⟨σv⟩/⟨v⟩ (cm²)", "time (s)"
         else:
             head = f"Ionization steps of {sym} (Lotz cross sections at {e:.6g} eV)"
         # Our layout: the steps grouped by the subshell they empty (a heading per group),
@@ -200,6 +241,7 @@ class _TextReport:
             ],
             "photon_beam": ["step", "IE (eV)", "beam − IE (eV)", sigma_name, time_name, "threshold (eV)"],
             "electron_impact": ["step", "IE (eV)", "threshold (eV)", "beam − threshold (eV)", sigma_name],
+            "plasma": ["step", "IE (eV)", sigma_name, time_name, "threshold (eV)"],
         }[kind]
         charges = [st.charge for st in steps]
         keep = _ladder_rows(charges, [st.subshell or "" for st in steps], q)
@@ -288,6 +330,16 @@ class _TextReport:
             if max(1, q - 5) <= x.charge <= q + 3
         ]
         t = evo.times_s
+        if r.plasma is not None:
+            header[-1] = "steady state"
+            return [
+                "",
+                f"Charge-state evolution of {evo.element} after the plasma is switched on "
+                f"({t[0]:.3g} … {t[-1]:.3g} s, {len(t)} times; states near {q}+ above 1 %)",
+                *_table(header, table),
+                f"  continuous extraction from the steady state; mean charge there "
+                f"{r.mean_charge_at_extraction:.2f} (neutrals included)",
+            ]
         return [
             "",
             f"Charge-state evolution of {evo.element} ({t[0]:.3g} … {t[-1]:.3g} s, "
@@ -302,6 +354,22 @@ class _TextReport:
         s, q = self.s, self.q
         what = "photon" if s.source.kind == "photon_beam" else "electron"
         e = sc.energies_ev
+        p = self.r.plasma
+        if p is not None:
+            t = p.scan_temperatures_ev
+            k = int(abs(t - s.source.electron_temperature_ev).argmin())
+            return [
+                "",
+                f"Best cold electron temperature for {s.target.isotope}{q}+ at steady state "
+                f"({len(t)} temperatures {t[0]:.4g} … {t[-1]:.4g} eV, other settings kept)",
+                f"  best: kT_e {p.best_temperature_ev:.5g} eV, {p.best_current_eua:.4g} eµA "
+                f"of {s.target.isotope}{q}+",
+                f"  near the scenario's {s.source.electron_temperature_ev:.5g} eV "
+                f"({t[k]:.4g} eV on the grid): {float(p.scan_target_current_eua[k]):.4g} eµA, "
+                f"fraction {float(p.scan_target_fraction[k]):.4f}",
+                f"  after switch-on, over the time grid: the largest fraction {sc.best_fraction:.4f} "
+                f"at {sc.best_energy_ev:.5g} eV and {sc.best_time_s:.3g} s",
+            ]
         out = [
             "",
             f"Best {what} energy for {s.target.symbol}{q}+ ({len(e)} energies {e[0]:.4g} … {e[-1]:.4g} eV)",
@@ -391,6 +459,30 @@ class _TextReport:
             out.append("  N_q = f·N_e·F_q / Σ q·F_q, shared among species by amount × mean charge" + iso)
         return out
 
+    def uncertainty(self) -> list[str]:
+        u = self.r.uncertainty
+        if u is None:
+            return []
+        f = u.factors
+        t, peak, ions = self.r.target_peak, u.peak_time_s, u.ions_per_extraction
+        nominal_ions = self.r.ions.target if self.r.ions is not None else None
+        rows = [
+            ["peak time (s)", _g(t[0], ".3e"), *(_g(v, ".3e") for v in peak)],
+            ["peak fraction", _g(t[1], ".4f"), *(_g(v, ".4f") for v in u.peak_fraction)],
+            ["ions per extraction", _g(nominal_ions, ".3e"), *(_g(v, ".3e") for v in ions)],
+        ]
+        return [
+            "",
+            f"Uncertainty of {self.s.target.label} (Monte Carlo over the process rates, {u.samples} samples, "
+            f"seed {u.seed})",
+            f"  1-σ lognormal factors: ionization ×{f['ionization_factor']:g}, radiative recombination "
+            f"×{f['recombination_factor']:g}, charge exchange ×{f['charge_exchange_factor']:g}; "
+            f"correlation along the charges {f['charge_correlation']:g}",
+            *_table(["quantity", "nominal", "5 %", "50 %", "95 %"], rows),
+            "  each sample extracts as the scenario does (at its own peak, or at the given time); "
+            "other species keep their nominal fractions",
+        ]
+
     def dynamics(self) -> list[str]:
         d = self.r.dynamics
         if d is None:
@@ -442,6 +534,45 @@ class _TextReport:
         out.append(
             f"  thermal energy: in {e['in']:.4g} eV, out {e['out']:.4g} eV, held {e['thermal']:.4g} eV "
             f"(largest miss {d.energy_balance:.1e} relative)"
+        )
+        return out
+
+    def plasma(self) -> list[str]:
+        p = self.r.plasma
+        if p is None:
+            return []
+        t, q = self.s.target, self.q
+        out = ["", "Extracted currents at steady state (eµA, I_q = η·q·e·n_q·V/τ_q)"]
+        for e in p.elements:
+            cur = e.currents_eua
+            top = float(max(cur)) if len(cur) else 0.0
+            rows = [
+                [
+                    f"{e.symbol}{c}+" + (" ◀" if e.symbol == t.symbol and c == q else ""),
+                    _g(float(e.fractions[c]), ".4f"),
+                    _g(float(e.densities_cm3[c]), ".3e"),
+                    _g(float(cur[c]), ".4g"),
+                ]
+                for c in range(1, len(cur))
+                if cur[c] >= 1e-3 * top or (e.symbol == t.symbol and c == q)
+            ]
+            tag = " (residual gas)" if e.residual else ""
+            out += [
+                "",
+                f"  {e.symbol}{tag}: {e.total_current_eua:.4g} eµA in all charge states, "
+                f"mean ion charge {e.mean_ion_charge:.2f}, fed {e.atom_density_cm3:.3e} atoms/cm³",
+                *_table(["ion", "fraction", "n_q (cm⁻³)", "current (eµA)"], rows),
+            ]
+        iso = f" (isotopic share {p.isotope_share:.4g})" if p.isotope_share != 1.0 else ""
+        out.append(f"  {t.label}: {p.target_current_eua:.4g} eµA{iso}")
+        out.append(
+            f"  ions' charge density Σ q·n_q = {p.ion_charge_density_cm3:.3e} cm⁻³ beside "
+            f"n_e = {p.electron_density_cm3:.3e} cm⁻³ (the balance does not impose quasi-neutrality)"
+        )
+        out.append(
+            "  the A/q spectrum below is the analysed beam: each line weighted by its extracted current "
+            "(eµA), mixing and residual gas included; fractions in the ranking are shares of the "
+            "isotope's current"
         )
         return out
 
@@ -499,7 +630,9 @@ class _TextReport:
             "ion",
             "m/q (u/e)",
             "A/q",
-            "ions per extraction" if self.r.ions is not None else "intensity",
+            "ions per extraction"
+            if self.r.ions is not None
+            else ("current (eµA)" if self.r.plasma is not None else "intensity"),
             "Δ(m/q)",
             "sep. (FWHM)",
             "contamination",
@@ -560,9 +693,10 @@ class _TextReport:
             same = " (the target itself)" if rec.charge == q else ""
             t_ex = self.r.extraction_time_s
             at = f" at {t_ex:.3g} s" if t_ex is not None else ""
+            share = "current" if self.r.plasma is not None else "ions"
             out.append(
                 f"Recommended charge state: {rec.label}{same}: A/q {rec.a_over_q:.4f}, "
-                f"{rec.fraction * 100:.3g} % of the isotope's ions{at}, purity {rec.purity:.4f}"
+                f"{rec.fraction * 100:.3g} % of the isotope's {share}{at}, purity {rec.purity:.4f}"
             )
             if rec.peak_time_s is not None:
                 out.append(

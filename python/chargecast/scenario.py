@@ -67,6 +67,24 @@ Source: exactly one of
 
     ``[electron_impact]`` -- the electron-impact source of a mass spectrometer, one
     collision per atom: ``energy_ev``, ``energy_spread_ev`` (0). Species enter neutral.
+
+    ``[plasma]`` -- a plasma (ECR-type) ion source, model ``"plasma_balance"``:
+    ``electron_temperature_ev`` (cold electrons, kT_e > 0), ``electron_density_cm3``
+    (n_e > 0) and ``confinement_time_s`` (required: τ₁ > 0 of τ_q = τ₁·q^α, or an array of
+    one time per charge 1 … Z of the heaviest element fed); ``confinement_exponent`` (α,
+    1; only with a single time); ``gas_feed_pa`` (required inline table of the fed gases,
+    e.g. ``{ Ar = 7e-7, O2 = 2.8e-6 }``, Pa >= 0, at least one > 0: the species are the
+    elements of these gases, natural isotopic mix, so leave out the species tables; several
+    gases mix); ``hot_electron_temperature_ev`` and ``hot_electron_fraction`` (0, 0 … 1:
+    a second, hot Maxwellian); ``ion_temperature_ev`` (1); ``gas_temperature_k`` (300);
+    ``neutral_residence_time_s`` (1.25e-4); ``wall_recycling`` (0, fraction 0 … 1 of the
+    lost ions that return as neutrals); ``plasma_volume_m3`` (1e-4); ``extraction_fraction``
+    (1, 0 < η <= 1 of the lost ions reaching the extraction). The ions leave continuously
+    from the steady state: the report gives the fractions and the extracted current per
+    charge in eµA of every element, the analysed-beam A/q spectrum weighted by current
+    (mixing and residual gas included) at the separator's resolving power, and the
+    steady state over the cold temperatures of the energy scan; the evolution shows the
+    switch-on.
 ``[residual_gas_pa]`` (optional)
     Partial pressures (Pa) by formula: H2, He, N2, O2, CO, CO2, H2O, CH4, Ne, Ar, Kr, Xe.
     Drives charge exchange in a trap; its elements appear in the A/q spectrum: in a beam
@@ -97,6 +115,15 @@ Source: exactly one of
     ``daughter_charge`` (``"parent"``: daughters enter at the parent's charge state, or
     ``"electrons_kept"``); ``max_nuclides`` (8, nuclides followed along the decay chains).
     The decay daughters appear in the A/q spectrum as isobaric contaminants.
+
+``[uncertainty]`` (optional, beam trap with the fixed model, no breeding cycle)
+    Monte Carlo bands over the process rates, each rate scaled by a lognormal factor:
+    ``samples`` (200, 2 … 100 000), ``seed`` (0, a whole number >= 0; the same seed gives
+    the same bits), the 1-σ factors ``ionization_factor`` (1.35), ``recombination_factor``
+    (1.5), ``charge_exchange_factor`` (2; each >= 1, 1 = exact) and ``charge_correlation``
+    (0.5, 0 … 1: how much of a process's spread the charge states share). The report gives
+    the 5/50/95 % range of the target's peak time, peak fraction and ions per extraction,
+    and the evolution figure shades the band of the target's fraction.
 
 Limits
     A scenario file holds at most 1 MiB (``chargecast._core.MAX_SCENARIO_BYTES``; a longer
@@ -215,8 +242,8 @@ class Scenario(_core.Scenario):
         ``name``, ``symbol``, ``z``, ``mass_number`` (None for a natural mix), ``amount``,
         ``initial_charge``.
     source : SourceSettings
-        ``kind`` ("beam_trap", "photon_beam" or "electron_impact") and its settings (the
-        fields of other kinds are None).
+        ``kind`` ("beam_trap", "photon_beam", "electron_impact" or "plasma") and its
+        settings (the fields of other kinds are None).
     residual_gas_pa, residual_elements : dict
         Partial pressures (Pa) by formula; element shares of the residual atoms.
     time, energy_scan, separator : TimeGrid, EnergyGrid, SeparatorSettings
@@ -300,7 +327,19 @@ class Report(_core.Report):
     recommended : Recommendation or None
     model : str
         The model of the evolution: ``"fixed"`` or ``"dynamic"`` (beam trap), ``"fixed"``
-        (photon beam), ``"single_collision"`` (electron impact).
+        (photon beam), ``"single_collision"`` (electron impact), ``"plasma_balance"``
+        (plasma).
+    uncertainty : UncertaintyBands or None
+        ``[uncertainty]``: ``peak_time_s``, ``peak_fraction``, ``ions_per_extraction`` as
+        (5 %, 50 %, 95 %), ``target_fraction`` [3, T] on the time grid, ``samples``,
+        ``seed``, ``factors``.
+    plasma : PlasmaReport or None
+        Plasma source: ``elements`` (``symbol``, ``residual``, ``densities_cm3``,
+        ``fractions``, ``currents_eua`` per charge 0 … Z, ``total_current_eua``,
+        ``mean_ion_charge``), ``target_current_eua``, ``ion_charge_density_cm3`` beside
+        ``electron_density_cm3``, and the steady-state scan ``scan_temperatures_ev``,
+        ``scan_target_fraction``, ``scan_target_current_eua``, ``best_temperature_ev``,
+        ``best_current_eua``.
     dynamics : DynamicReport or None
         Model ``"dynamic"``: at the extraction time, ``target_rows`` (the target charge and
         its neighbours: ``ions``, ``temperature_ev``, ``overlap``, ``escape_per_s`` in

@@ -19,10 +19,12 @@ use crate::sources::beam_trap::{
     DEFAULT_ION_TEMPERATURE_EV,
 };
 use crate::sources::electron_beam::BeamSize;
+use crate::sources::plasma::{Confinement, PlasmaSettings, DEFAULT_CONFINEMENT_EXPONENT};
 use crate::sources::rib_cycle::{
     nuclide, BreedingCycle, DaughterCharge, Injection, DEFAULT_CAPTURE_EFFICIENCY,
     DEFAULT_MAX_NUCLIDES,
 };
+use crate::sources::uncertainty::UncertaintyFactors;
 
 /// (name, value) pairs in file or alphabetical order.
 type Pairs = Vec<(String, f64)>;
@@ -137,16 +139,37 @@ impl Checker<'_, '_> {
 
     fn check(&self, raw: RawScenario) -> Result<Scenario> {
         let target = self.target(raw.target)?;
-        let species = self.species(raw.species, &target)?;
-        let source = self.source(raw.beam_trap, raw.photon_beam, raw.electron_impact)?;
+        let plasma_species = raw.plasma.is_some();
+        if plasma_species && raw.species.is_some() {
+            return Err(self.err(
+                "species",
+                "a [plasma] source takes its species from plasma.gas_feed_pa (each fed gas's elements, natural isotopic mix): remove the [[species]] tables",
+            ));
+        }
+        let species = if plasma_species {
+            Vec::new()
+        } else {
+            self.species(raw.species, &target)?
+        };
+        let source = self.source(
+            raw.beam_trap,
+            raw.photon_beam,
+            raw.electron_impact,
+            raw.plasma,
+        )?;
         let (residual_gas_pa, residual_elements) = self.residual_gas(raw.residual_gas_pa)?;
         self.dynamic_rules(&source, &species)?;
         // The core source checks its own ranges (compensation, temperatures, beam size).
         self.build(&source, &residual_gas_pa)?;
+        let species = match &source {
+            SourceSettings::Plasma(_) => self.plasma_species(&source, &residual_gas_pa, &target)?,
+            _ => species,
+        };
         let mut time = self.time(raw.time, &source, &target)?;
         let injection = self.injection(raw.injection, &source, &target, &mut time)?;
         let energy_scan = self.energy_scan(raw.energy_scan, &source, &target)?;
         let separator = self.separator(raw.separator)?;
+        let uncertainty = self.uncertainty(raw.uncertainty, &source, injection.is_some())?;
         self.size(&species, &target, &time, &energy_scan)?;
         if let SourceSettings::ElectronImpact(_) = source {
             if let Some(s) = species.iter().find(|s| s.initial_charge != 0) {
@@ -171,8 +194,65 @@ impl Checker<'_, '_> {
             energy_scan,
             separator,
             injection,
+            uncertainty,
             lines,
         })
+    }
+
+    /// The `[uncertainty]` table: a beam trap with the fixed model and no breeding cycle
+    /// (the core's Monte Carlo samples the fixed model's rates); the core checks the factors.
+    fn uncertainty(
+        &self,
+        raw: Option<RawUncertainty>,
+        source: &SourceSettings,
+        injection: bool,
+    ) -> Result<Option<UncertaintySettings>> {
+        let Some(raw) = raw else { return Ok(None) };
+        match source {
+            SourceSettings::BeamTrap(t) if !t.is_dynamic() => {}
+            _ => {
+                return Err(self.err(
+                    "uncertainty",
+                    "uncertainty bands need a [beam_trap] source with the fixed model (the Monte Carlo samples its process rates)",
+                ))
+            }
+        }
+        if injection {
+            return Err(self.err(
+                "uncertainty",
+                "the bands cover the trap's own ions per extraction, not a breeding cycle's: leave out [uncertainty] or [injection]",
+            ));
+        }
+        let n = raw.samples.unwrap_or(DEFAULT_UNCERTAINTY_SAMPLES);
+        if !(2..=MAX_UNCERTAINTY_SAMPLES).contains(&n) {
+            return Err(self.err(
+                "uncertainty.samples",
+                format!("{n} is not allowed: must be a whole number 2..={MAX_UNCERTAINTY_SAMPLES}"),
+            ));
+        }
+        let seed = raw.seed.unwrap_or(DEFAULT_UNCERTAINTY_SEED);
+        let seed = u64::try_from(seed).map_err(|_| {
+            self.err(
+                "uncertainty.seed",
+                format!("{seed} is not allowed: must be a whole number >= 0"),
+            )
+        })?;
+        let d = UncertaintyFactors::default();
+        let factors = UncertaintyFactors::new(
+            raw.ionization_factor.unwrap_or(d.ionization),
+            raw.recombination_factor.unwrap_or(d.recombination),
+            raw.charge_exchange_factor.unwrap_or(d.charge_exchange),
+            raw.charge_correlation.unwrap_or(d.charge_correlation),
+        )
+        .map_err(|e| match &e {
+            Error::InvalidParameter { name, .. } => self.err(&format!("uncertainty.{name}"), e),
+            _ => self.err("uncertainty", e),
+        })?;
+        Ok(Some(UncertaintySettings {
+            samples: n as usize,
+            seed,
+            factors,
+        }))
     }
 
     /// The scenario's size limit, from the size model of `crate::limits`: the run keeps one
@@ -320,6 +400,13 @@ impl Checker<'_, '_> {
                 initial_charge: q as u32,
             });
         }
+        self.carries_target(&out, target, "species")?;
+        Ok(out)
+    }
+
+    /// One species must provide the target isotope (an isotope given alone, or an element
+    /// in which it occurs naturally); else an error at `path`.
+    fn carries_target(&self, out: &[SpeciesEntry], target: &Target, path: &str) -> Result<()> {
         let carries_target = out.iter().any(|s| {
             s.z == target.z
                 && match s.mass_number {
@@ -331,14 +418,56 @@ impl Checker<'_, '_> {
                 }
         });
         if !carries_target {
-            return Err(self.err(
-                "species",
+            let remedy = if path == "species" {
                 format!(
-                    "no species provides the target {}: add [[species]] name = \"{}\" (or the element {} if {} occurs naturally)",
-                    target.isotope, target.isotope, target.symbol, target.isotope
+                    "add [[species]] name = \"{}\" (or the element {} if {} occurs naturally)",
+                    target.isotope, target.symbol, target.isotope
+                )
+            } else {
+                let fed: Vec<&str> = out.iter().map(|s| s.symbol.as_str()).collect();
+                format!(
+                    "feed a gas that brings {} (the fed gases bring {}; a plasma runs the natural isotopic mix)",
+                    target.symbol,
+                    fed.join(", ")
+                )
+            };
+            return Err(self.err(
+                path,
+                format!(
+                    "no species provides the target {}: {remedy}",
+                    target.isotope
                 ),
             ));
         }
+        Ok(())
+    }
+
+    /// The species of a plasma: the elements of its fed gases, natural isotopic mix, in the
+    /// core source's order, each with its fed atom density (cm⁻³) as its amount.
+    fn plasma_species(
+        &self,
+        source: &SourceSettings,
+        residual_gas_pa: &[(String, f64)],
+        target: &Target,
+    ) -> Result<Vec<SpeciesEntry>> {
+        let built = self.wrap("plasma", source.build(residual_gas_pa))?;
+        let crate::sources::Source::Plasma(p) = built else {
+            return Err(self.err("plasma", "not a plasma source"));
+        };
+        let out: Vec<SpeciesEntry> = p
+            .species()
+            .iter()
+            .filter(|sp| !sp.residual)
+            .map(|sp| SpeciesEntry {
+                name: sp.element.symbol().to_string(),
+                symbol: sp.element.symbol().to_string(),
+                z: sp.element.z(),
+                mass_number: None,
+                amount: sp.atom_density_cm3,
+                initial_charge: 0,
+            })
+            .collect();
+        self.carries_target(&out, target, "plasma.gas_feed_pa")?;
         Ok(out)
     }
 
@@ -347,13 +476,23 @@ impl Checker<'_, '_> {
         trap: Option<RawBeamTrap>,
         photon: Option<RawPhotonBeam>,
         single: Option<RawElectronImpact>,
+        plasma: Option<RawPlasma>,
     ) -> Result<SourceSettings> {
-        let given = [trap.is_some(), photon.is_some(), single.is_some()]
-            .iter()
-            .filter(|g| **g)
-            .count();
+        let given = [
+            trap.is_some(),
+            photon.is_some(),
+            single.is_some(),
+            plasma.is_some(),
+        ]
+        .iter()
+        .filter(|g| **g)
+        .count();
         if given != 1 {
-            let path = if trap.is_some() && photon.is_some() {
+            let path = if given == 0 {
+                ""
+            } else if plasma.is_some() {
+                "plasma"
+            } else if trap.is_some() && photon.is_some() {
                 "photon_beam"
             } else if single.is_some() {
                 "electron_impact"
@@ -363,10 +502,13 @@ impl Checker<'_, '_> {
             return Err(self.err(
                 path,
                 format!(
-                    "{} source tables given: give exactly one of [beam_trap], [photon_beam] or [electron_impact]",
+                    "{} source tables given: give exactly one of [beam_trap], [photon_beam], [electron_impact] or [plasma]",
                     if given == 0 { "no" } else { "several" }
                 ),
             ));
+        }
+        if let Some(p) = plasma {
+            return self.plasma(p).map(SourceSettings::Plasma);
         }
         if let Some(t) = trap {
             return self.trap(t).map(SourceSettings::BeamTrap);
@@ -458,12 +600,68 @@ impl Checker<'_, '_> {
         })
     }
 
+    /// The `[plasma]` table as the core's settings (defaults from the core's
+    /// [`PlasmaSettings::new`]); the core constructor checks every range.
+    fn plasma(&self, p: RawPlasma) -> Result<PlasmaSettings> {
+        let confinement = match p.confinement_time_s {
+            OneOrMany::One(tau1_s) => Confinement::Scaling {
+                tau1_s,
+                exponent: p
+                    .confinement_exponent
+                    .unwrap_or(DEFAULT_CONFINEMENT_EXPONENT),
+            },
+            OneOrMany::Many(times) => {
+                if p.confinement_exponent.is_some() {
+                    return Err(self.err(
+                        "plasma.confinement_exponent",
+                        "scales a single confinement_time_s (τ_q = τ₁·q^α): with one time per charge leave it out",
+                    ));
+                }
+                Confinement::PerCharge(times)
+            }
+        };
+        let feed = self.gas_pairs("plasma.gas_feed_pa", p.gas_feed_pa)?;
+        let mut s = PlasmaSettings::new(
+            p.electron_temperature_ev,
+            p.electron_density_cm3,
+            confinement,
+            feed,
+        );
+        s.hot_electron_temperature_ev = p.hot_electron_temperature_ev;
+        if let Some(f) = p.hot_electron_fraction {
+            s.hot_electron_fraction = f;
+        }
+        if let Some(t) = p.ion_temperature_ev {
+            s.ion_temperature_ev = t;
+        }
+        if let Some(t) = p.gas_temperature_k {
+            s.gas_temperature_k = t;
+        }
+        if let Some(t) = p.neutral_residence_time_s {
+            s.neutral_residence_time_s = t;
+        }
+        if let Some(r) = p.wall_recycling {
+            s.wall_recycling = r;
+        }
+        if let Some(v) = p.plasma_volume_m3 {
+            s.plasma_volume_m3 = v;
+        }
+        if let Some(e) = p.extraction_fraction {
+            s.extraction_fraction = e;
+        }
+        Ok(s)
+    }
+
     /// The gases fed into a dynamic trap: known formulas, pressures >= 0 (Pa).
     fn gas_feed(&self, raw: Option<BTreeMap<String, f64>>) -> Result<Pairs> {
-        raw.unwrap_or_default()
-            .into_iter()
+        self.gas_pairs("beam_trap.gas_feed_pa", raw.unwrap_or_default())
+    }
+
+    /// A table of gases by formula at `table`: known formulas, pressures >= 0 (Pa).
+    fn gas_pairs(&self, table: &str, raw: BTreeMap<String, f64>) -> Result<Pairs> {
+        raw.into_iter()
             .map(|(name, p)| {
-                let path = format!("beam_trap.gas_feed_pa.{name}");
+                let path = format!("{table}.{name}");
                 let g = self.wrap(&path, gas(&name))?;
                 Ok((g.formula.to_string(), self.non_negative(&path, p, "Pa")?))
             })
@@ -516,9 +714,16 @@ impl Checker<'_, '_> {
     fn build(&self, source: &SourceSettings, residual_gas_pa: &[(String, f64)]) -> Result<()> {
         source.build(residual_gas_pa).map(|_| ()).map_err(|e| {
             let kind = source.kind();
+            // A core name may carry a note after the field ("confinement_time_s[3]
+            // (charge 4)"): the field is its first word, when the file has it.
             let path = match &e {
-                Error::InvalidParameter { name, .. } if !name.contains(' ') => {
-                    format!("{kind}.{name}")
+                Error::InvalidParameter { name, .. } => {
+                    let field = format!("{kind}.{}", name.split(' ').next().unwrap_or(""));
+                    if !name.contains(' ') || self.pos.line(&field).is_some() {
+                        field
+                    } else {
+                        kind.to_string()
+                    }
                 }
                 _ => kind.to_string(),
             };

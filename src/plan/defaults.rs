@@ -90,3 +90,12 @@ pub fn default_injected_atoms(
 ) -> f64 {
     compensation * electrons_in_trap / f64::from(target_charge.max(1))
 }
+
+/// Monte Carlo samples of `[uncertainty]` when none is given.
+pub const DEFAULT_UNCERTAINTY_SAMPLES: i64 = 200;
+/// Most Monte Carlo samples a scenario may ask for.
+pub const MAX_UNCERTAINTY_SAMPLES: i64 = 100_000;
+/// Seed of the Monte Carlo samples when none is given.
+pub const DEFAULT_UNCERTAINTY_SEED: i64 = 0;
+/// The percentiles of every uncertainty band in the report.
+pub const BAND_PERCENTILES: [f64; 3] = [5.0, 50.0, 95.0];

@@ -28,6 +28,6 @@ pub use run::run;
 pub use schema::{MAX_QUOTE_CHARS, MAX_SCENARIO_BYTES};
 pub use settings::{
     BeamTrapSettings, ElectronImpactSettings, EnergyGrid, PhotonBeamSettings, Scenario, Separator,
-    SourceSettings, SpeciesEntry, Target, TimeGrid,
+    SourceSettings, SpeciesEntry, Target, TimeGrid, UncertaintySettings,
 };
 pub use warnings::Warning;

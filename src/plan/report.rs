@@ -15,13 +15,20 @@ use crate::spectrum::{ChargeStateRank, LineList, OverlapReport};
 pub const CAUTIONS: &str =
     "These results are planning estimates from empirical cross sections (typically within \
 tens of percent), not a substitute for measurement. Ion sources involve high voltage, \
-X-rays from electron beams, intense UV/X-ray photon beams, strong magnets and \
+X-rays from electron beams and hot plasma electrons, microwave power, intense UV/X-ray \
+photon beams, strong magnets and \
 cryogens, and sometimes radioactive species: follow local codes, the facility's \
 radiation-safety officer and licensed practice.";
 
 /// Model names of the non-trap sources in [`Report::model`] (a trap names its own).
 pub const MODEL_FIXED: &str = crate::sources::beam_trap::TrapModel::NAMES[0];
 pub const MODEL_SINGLE_COLLISION: &str = "single_collision";
+/// The zero-dimensional particle balance of [`crate::sources::plasma`].
+pub const MODEL_PLASMA: &str = "plasma_balance";
+/// A note is written when the plasma ions' charge density Σ q·n_q exceeds this multiple
+/// of n_e (the balance imposes no quasi-neutrality; the same limit as the Python
+/// `PlasmaSource.steady_states` warning).
+pub const QUASI_NEUTRALITY_LIMIT: f64 = 1.0;
 
 /// A charge state below this fraction of the isotope's ions is not a practical choice:
 /// the recommendation skips it (and a target peaking below it gets a note).
@@ -332,6 +339,94 @@ pub struct Report {
     pub warnings: Vec<super::warnings::Warning>,
     /// What the ion-dynamics model adds (beam trap with model "dynamic"; else None).
     pub dynamics: Option<super::dynamics::DynamicReport>,
+    /// The plasma source's steady state, currents and temperature scan (else None).
+    pub plasma: Option<PlasmaReport>,
+    /// Monte Carlo bands of the target (`[uncertainty]`; else None).
+    pub uncertainty: Option<UncertaintyBands>,
+}
+
+/// Percentile bands of the target from Monte Carlo samples of the process rates
+/// ([`crate::sources::uncertainty`]); every triple is the 5th, 50th and 95th percentile
+/// ([`super::defaults::BAND_PERCENTILES`], linear interpolation between order statistics,
+/// numpy's default).
+#[derive(Clone, Debug, PartialEq)]
+pub struct UncertaintyBands {
+    pub samples: usize,
+    pub seed: u64,
+    pub factors: crate::sources::uncertainty::UncertaintyFactors,
+    /// Time (s) of the target's largest fraction on the time grid.
+    pub peak_time_s: [f64; 3],
+    /// The target's largest fraction.
+    pub peak_fraction: [f64; 3],
+    /// Ions of the target isotope per extraction; each sample extracts at its own peak
+    /// when the scenario extracts at the peak, else at the scenario's extraction time.
+    /// The other species keep their nominal fractions.
+    pub ions_per_extraction: [f64; 3],
+    /// The target fraction's band at every time of the grid: 5th, 50th, 95th percentile.
+    pub target_fraction: [Vec<f64>; 3],
+}
+
+/// One element of a plasma source at steady state.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlasmaElement {
+    pub symbol: String,
+    /// Brought only by the residual gas (an element also fed counts as fed).
+    pub residual: bool,
+    /// Atoms of the element per cm³ in the gas as fed (cm⁻³).
+    pub atom_density_cm3: f64,
+    /// Steady-state densities n_q (cm⁻³), charge 0…Z.
+    pub densities_cm3: Vec<f64>,
+    /// Steady-state fractions n_q / Σ n (neutrals included), charge 0…Z.
+    pub fractions: Vec<f64>,
+    /// Extracted current I_q (eµA) of each charge 0…Z (0 for the neutral).
+    pub currents_eua: Vec<f64>,
+    /// Σ_q I_q (eµA).
+    pub total_current_eua: f64,
+    /// Σ q·n_q / Σ n_q over the ions (q ≥ 1).
+    pub mean_ion_charge: f64,
+}
+
+impl PlasmaElement {
+    /// Share of the element's extracted current in each charge 0…Z (what the A/q
+    /// spectrum weights its lines by; zeros without current).
+    pub fn current_shares(&self) -> Vec<f64> {
+        let total = self.total_current_eua;
+        self.currents_eua
+            .iter()
+            .map(|i| if total > 0.0 { i / total } else { 0.0 })
+            .collect()
+    }
+}
+
+/// A plasma source at steady state, as the report shows it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlasmaReport {
+    /// Fed elements first (in the core's order), then residual-gas elements.
+    pub elements: Vec<PlasmaElement>,
+    /// n_e (cm⁻³), for comparison with the ions' charge density.
+    pub electron_density_cm3: f64,
+    /// Σ over every element and charge of q·n_q (cm⁻³).
+    pub ion_charge_density_cm3: f64,
+    /// Natural abundance of the target isotope in its element.
+    pub isotope_share: f64,
+    /// Extracted current (eµA) of the target isotope at the target charge.
+    pub target_current_eua: f64,
+    /// Cold electron temperatures kT_e (eV) of the steady-state scan (the energy grid).
+    pub scan_temperatures_ev: Vec<f64>,
+    /// Steady-state fraction of the target charge of its element at each temperature.
+    pub scan_target_fraction: Vec<f64>,
+    /// Extracted current (eµA) of the target isotope at each temperature.
+    pub scan_target_current_eua: Vec<f64>,
+    /// The temperature of the largest target current on the scan (eV), and that current.
+    pub best_temperature_ev: f64,
+    pub best_current_eua: f64,
+}
+
+impl PlasmaReport {
+    /// The steady state of element `symbol` (None if the gases do not bring it).
+    pub fn element(&self, symbol: &str) -> Option<&PlasmaElement> {
+        self.elements.iter().find(|e| e.symbol == symbol)
+    }
 }
 
 impl Report {
@@ -342,7 +437,7 @@ impl Report {
         match &self.source {
             Source::BeamTrap(t) => t.model.name(),
             Source::PhotonBeam(_) => MODEL_FIXED,
-            Source::Plasma(_) => "plasma_balance",
+            Source::Plasma(_) => MODEL_PLASMA,
             Source::ElectronImpact(_) => MODEL_SINGLE_COLLISION,
         }
     }

@@ -1,6 +1,6 @@
 //! Running a scenario: every number of the report, computed once, here.
 
-use super::defaults::{SPREAD_SAMPLES, THRESHOLD_SIDE_EV};
+use super::defaults::{BAND_PERCENTILES, SPREAD_SAMPLES, THRESHOLD_SIDE_EV};
 use super::report::*;
 use super::settings::{geomspace, Scenario, SourceSettings, SpeciesEntry, Target};
 use super::warnings::{source_warnings, threshold_warning, time_grid_warning, Warning};
@@ -48,6 +48,8 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
     let mut robust = None;
     let mut dynamic_run = None;
     let mut dynamics = None;
+    let mut plasma: Option<PlasmaReport> = None;
+    let mut uncertainty: Option<UncertaintyBands> = None;
     let energy_scan;
     if let Source::ElectronImpact(src) = &source {
         for sp in &s.species {
@@ -67,6 +69,39 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
             ));
         }
         energy_scan = EnergyScan::Appearance(scan);
+    } else if let Source::Plasma(p) = &source {
+        // Continuous extraction: the beam is the steady state; the evolution after the
+        // plasma is switched on shows how soon it is reached.
+        let times = s.time.times_s();
+        for sp in &s.species {
+            evolutions.push(SpeciesEvolution {
+                name: sp.name.clone(),
+                symbol: sp.symbol.clone(),
+                times_s: times.clone(),
+                fractions: p.evolve(sp.element(), &times, 0)?,
+            });
+        }
+        let pr = plasma_report(s, p)?;
+        for sp in &s.species {
+            let el = pr.element(&sp.symbol).ok_or_else(|| {
+                crate::error::Error::invalid("species", &sp.symbol, "must be fed to the plasma")
+            })?;
+            fractions_at_extraction.push(SpeciesFractions {
+                name: sp.name.clone(),
+                symbol: sp.symbol.clone(),
+                fractions: el.fractions.clone(),
+            });
+        }
+        let ratio = pr.ion_charge_density_cm3 / pr.electron_density_cm3;
+        if ratio > QUASI_NEUTRALITY_LIMIT {
+            notes.push(format!(
+                "the ions' charge density Σ q·n_q = {:.3e} cm⁻³ is {ratio:.2} × n_e = {:.3e} cm⁻³: the source is not quasi-neutral (the balance does not impose it): lower plasma.gas_feed_pa or confinement_time_s, or raise electron_density_cm3",
+                pr.ion_charge_density_cm3, pr.electron_density_cm3
+            ));
+        }
+        plasma = Some(pr);
+        let map = energy_map(s, &source, target_el, &times, progress)?;
+        energy_scan = EnergyScan::Map(map);
     } else {
         let times = s.time.times_s();
         match &source {
@@ -131,6 +166,16 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                     t_ex.0,
                     &fractions_at_extraction,
                 )?);
+                if let Some(u) = &s.uncertainty {
+                    uncertainty = Some(uncertainty_bands(
+                        s,
+                        trap,
+                        u,
+                        &times,
+                        t_ex,
+                        &fractions_at_extraction,
+                    )?);
+                }
             }
         }
         let map = energy_map(s, &source, target_el, &times, progress)?;
@@ -157,9 +202,30 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
 
     let (evolution_summary, mean_charge_at_extraction, target_peak) = {
         let name = &s.target_species().name;
-        match (evolutions.iter().find(|e| &e.name == name), extraction) {
-            (Some(evo), Some((t_ex, _))) => {
-                let at = evo.at(t_ex);
+        // The fractions the ions leave with: at the extraction time, or a plasma's steady
+        // state (its mean charge from the same formula, on that one row).
+        let leaving = match (evolutions.iter().find(|e| &e.name == name), extraction) {
+            (Some(evo), Some((t_ex, _))) => Some((
+                evo,
+                evo.at(t_ex),
+                evo.mean_charge()[evo.nearest_index(t_ex)],
+                Some(evo.peak(q)),
+            )),
+            (Some(evo), None) if plasma.is_some() => {
+                let at = fractions_at_extraction
+                    .iter()
+                    .find(|f| &f.name == name)
+                    .map(|f| f.fractions.clone())
+                    .unwrap_or_default();
+                let row = ndarray::Array2::from_shape_vec((1, at.len()), at.clone())
+                    .map_err(|e| crate::error::Error::invalid("fractions", e, "one row"))?;
+                let mean = crate::solve::evolution::mean_charge(row.view())[0];
+                Some((evo, at, mean, None))
+            }
+            _ => None,
+        };
+        match leaving {
+            Some((evo, at, mean, peak)) => {
                 let rows = (0..=evo.fractions.ncols() as u32 - 1)
                     .filter(|c| {
                         evo.fractions
@@ -178,14 +244,22 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                         }
                     })
                     .collect();
-                let mean = evo.mean_charge()[evo.nearest_index(t_ex)];
-                (rows, Some(mean), Some(evo.peak(q)))
+                (rows, Some(mean), peak)
             }
-            _ => (Vec::new(), None, None),
+            None => (Vec::new(), None, None),
         }
     };
 
-    let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
+    let residual_fractions = match &plasma {
+        // A plasma's residual-gas elements, weighted by their extracted current (eµA).
+        Some(pr) => pr
+            .elements
+            .iter()
+            .filter(|e| e.residual && e.total_current_eua > 0.0)
+            .map(|e| (e.symbol.clone(), e.total_current_eua, e.current_shares()))
+            .collect(),
+        None => residual_fractions(s, &source, extraction.map(|e| e.0))?,
+    };
     let injection = match (&source, &s.injection) {
         (Source::BeamTrap(trap), Some(c)) => Some(run_cycle(trap, c, &[])?),
         _ => None,
@@ -213,9 +287,11 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
             ));
         }
     }
-    let dynamic_inputs = dynamics
-        .as_ref()
-        .map(|d| super::dynamics::spectrum_inputs(s, d));
+    let dynamic_inputs = match (&dynamics, &plasma) {
+        (Some(d), _) => Some(super::dynamics::spectrum_inputs(s, d)),
+        (None, Some(pr)) => Some(plasma_spectrum_inputs(s, pr)),
+        _ => None,
+    };
     let lines = spectrum_lines(
         s,
         &source,
@@ -254,7 +330,8 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                 .iter()
                 .find(|e| e.name == s.target_species().name),
         ) {
-            (_, Some(evo)) if l.charge != q => Some(evo.peak(l.charge)),
+            // A plasma extracts continuously: no extraction time to retune.
+            (_, Some(evo)) if l.charge != q && plasma.is_none() => Some(evo.peak(l.charge)),
             _ => None,
         };
         Recommendation {
@@ -298,7 +375,165 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         notes,
         warnings,
         dynamics,
+        plasma,
+        uncertainty,
     })
+}
+
+/// The `[uncertainty]` bands of the target: Monte Carlo samples of the trap's process
+/// rates, each sample's peak, and its ions per extraction read off as the nominal run
+/// reads them.
+fn uncertainty_bands(
+    s: &Scenario,
+    trap: &crate::sources::BeamTrap,
+    u: &super::settings::UncertaintySettings,
+    times: &[f64],
+    extraction: (f64, ExtractionChoice),
+    fractions: &[SpeciesFractions],
+) -> Result<UncertaintyBands> {
+    use crate::solve::evolution;
+    let sp = s.target_species();
+    let q = s.target.charge as usize;
+    let pops = crate::sources::uncertainty::monte_carlo(
+        trap,
+        sp.element(),
+        sp.initial_charge,
+        times,
+        &u.factors,
+        u.seed,
+        0,
+        u.samples,
+    )?;
+    let (mut peak_t, mut peak_f, mut ions) = (Vec::new(), Vec::new(), Vec::new());
+    for sample in pops.outer_iter() {
+        let (t, f) = evolution::peak(times, sample, q);
+        let t_ex = match extraction.1 {
+            ExtractionChoice::TargetPeak => t,
+            ExtractionChoice::Scenario => extraction.0,
+        };
+        let own: Vec<SpeciesFractions> = fractions
+            .iter()
+            .map(|x| SpeciesFractions {
+                fractions: if x.name == sp.name {
+                    evolution::interpolate(times, sample, t_ex)
+                } else {
+                    x.fractions.clone()
+                },
+                ..x.clone()
+            })
+            .collect();
+        peak_t.push(t);
+        peak_f.push(f);
+        ions.push(ions_per_extraction(s, trap, t_ex, &own)?.target);
+    }
+    let band = |v: &mut Vec<f64>| BAND_PERCENTILES.map(|p| percentile(v, p));
+    let column = |p: f64| -> Vec<f64> {
+        (0..times.len())
+            .map(|k| {
+                let mut v: Vec<f64> = pops.outer_iter().map(|x| x[[k, q]]).collect();
+                percentile(&mut v, p)
+            })
+            .collect()
+    };
+    Ok(UncertaintyBands {
+        samples: u.samples,
+        seed: u.seed,
+        factors: u.factors,
+        peak_time_s: band(&mut peak_t),
+        peak_fraction: band(&mut peak_f),
+        ions_per_extraction: band(&mut ions),
+        target_fraction: BAND_PERCENTILES.map(column),
+    })
+}
+
+/// The `p`-th percentile (0…100) of `values` (sorted in place), linear between the order
+/// statistics at rank (n − 1)·p/100 — numpy's default method.
+pub fn percentile(values: &mut [f64], p: f64) -> f64 {
+    values.sort_by(f64::total_cmp);
+    let n = values.len();
+    if n == 0 {
+        return f64::NAN;
+    }
+    let h = (n - 1) as f64 * p.clamp(0.0, 100.0) / 100.0;
+    let lo = h.floor() as usize;
+    let hi = (lo + 1).min(n - 1);
+    values[lo] + (h - lo as f64) * (values[hi] - values[lo])
+}
+
+/// The steady state of every element of a plasma source, its extracted currents, and the
+/// target's steady state over the cold electron temperatures of the energy grid.
+fn plasma_report(s: &Scenario, p: &crate::sources::PlasmaSource) -> Result<PlasmaReport> {
+    let mut elements = Vec::new();
+    let mut charge_density = 0.0;
+    for sp in p.species() {
+        let n = p.steady_state(sp.element)?;
+        let total: f64 = n.iter().sum();
+        let ions: f64 = n.iter().skip(1).sum();
+        let q_n: f64 = n.iter().enumerate().map(|(q, v)| q as f64 * v).sum();
+        charge_density += q_n;
+        let currents = p.currents_eua(&n)?;
+        elements.push(PlasmaElement {
+            symbol: sp.element.symbol().to_string(),
+            residual: sp.residual,
+            atom_density_cm3: sp.atom_density_cm3,
+            fractions: n
+                .iter()
+                .map(|v| if total > 0.0 { v / total } else { 0.0 })
+                .collect(),
+            total_current_eua: currents.iter().sum(),
+            currents_eua: currents,
+            mean_ion_charge: if ions > 0.0 { q_n / ions } else { 0.0 },
+            densities_cm3: n,
+        });
+    }
+    let el = s.target.element();
+    let q = s.target.charge as usize;
+    let iso = isotope_share(s.target_species(), &s.target);
+    let target_current = |src: &crate::sources::PlasmaSource| -> Result<(f64, f64)> {
+        let n = src.steady_state(el)?;
+        let total: f64 = n.iter().sum();
+        let i = src.currents_eua(&n)?;
+        Ok((
+            if total > 0.0 { n[q] / total } else { 0.0 },
+            iso * i.get(q).copied().unwrap_or(0.0),
+        ))
+    };
+    let temperatures = s.energy_scan.energies_ev();
+    let mut fraction = Vec::with_capacity(temperatures.len());
+    let mut current = Vec::with_capacity(temperatures.len());
+    for t in &temperatures {
+        let (f, i) = target_current(&p.with_energy(*t)?)?;
+        fraction.push(f);
+        current.push(i);
+    }
+    let best = nearest_max(&current);
+    Ok(PlasmaReport {
+        target_current_eua: target_current(p)?.1,
+        elements,
+        electron_density_cm3: p.settings().electron_density_cm3,
+        ion_charge_density_cm3: charge_density,
+        isotope_share: iso,
+        best_temperature_ev: temperatures[best],
+        best_current_eua: current[best],
+        scan_temperatures_ev: temperatures,
+        scan_target_fraction: fraction,
+        scan_target_current_eua: current,
+    })
+}
+
+/// The fed elements of a plasma on the A/q axis, each weighted by its extracted current
+/// (eµA): the analysed beam (residual-gas elements are added beside them).
+fn plasma_spectrum_inputs(s: &Scenario, pr: &PlasmaReport) -> Vec<SpeciesInput> {
+    s.species
+        .iter()
+        .filter_map(|sp| pr.element(&sp.symbol))
+        .map(|e| SpeciesInput {
+            spec: e.symbol.clone(),
+            amount: e.total_current_eua,
+            fractions: e.current_shares(),
+            residual: false,
+        })
+        .collect()
 }
 
 /// Said in every dynamic-model report: which parts use which model.

@@ -16,11 +16,13 @@ pub(crate) struct RawScenario {
     pub beam_trap: Option<RawBeamTrap>,
     pub photon_beam: Option<RawPhotonBeam>,
     pub electron_impact: Option<RawElectronImpact>,
+    pub plasma: Option<RawPlasma>,
     pub residual_gas_pa: Option<BTreeMap<String, f64>>,
     pub time: Option<RawTime>,
     pub energy_scan: Option<RawEnergyScan>,
     pub separator: Option<RawSeparator>,
     pub injection: Option<RawInjection>,
+    pub uncertainty: Option<RawUncertainty>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -77,6 +79,36 @@ pub(crate) struct RawElectronImpact {
     pub energy_spread_ev: Option<f64>,
 }
 
+/// The plasma ion source (ECR type): every input of the core's `PlasmaSettings`.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawPlasma {
+    pub electron_temperature_ev: f64,
+    pub electron_density_cm3: f64,
+    pub hot_electron_temperature_ev: Option<f64>,
+    pub hot_electron_fraction: Option<f64>,
+    pub ion_temperature_ev: Option<f64>,
+    pub confinement_time_s: OneOrMany,
+    pub confinement_exponent: Option<f64>,
+    pub gas_feed_pa: BTreeMap<String, f64>,
+    pub gas_temperature_k: Option<f64>,
+    pub neutral_residence_time_s: Option<f64>,
+    pub wall_recycling: Option<f64>,
+    pub plasma_volume_m3: Option<f64>,
+    pub extraction_fraction: Option<f64>,
+}
+
+/// A number, or an array of numbers (one per charge state).
+#[derive(Debug, Deserialize)]
+#[serde(
+    untagged,
+    expecting = "expected a number (τ₁, s) or an array of numbers (one time per charge 1, 2, …)"
+)]
+pub(crate) enum OneOrMany {
+    One(f64),
+    Many(Vec<f64>),
+}
+
 #[derive(Debug, Default, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub(crate) struct RawTime {
@@ -104,6 +136,18 @@ pub(crate) struct RawSeparator {
     pub relative_half_width: Option<f64>,
     pub window_fwhm: Option<f64>,
     pub aq_range: Option<Vec<f64>>,
+}
+
+/// Monte Carlo uncertainty bands (beam trap, fixed model).
+#[derive(Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawUncertainty {
+    pub samples: Option<i64>,
+    pub seed: Option<i64>,
+    pub ionization_factor: Option<f64>,
+    pub recombination_factor: Option<f64>,
+    pub charge_exchange_factor: Option<f64>,
+    pub charge_correlation: Option<f64>,
 }
 
 /// The radioactive-beam breeding cycle (beam trap only).

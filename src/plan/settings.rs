@@ -7,6 +7,7 @@ use crate::atoms::{element, Element};
 use crate::error::Result;
 use crate::sources::beam_trap::{Processes, TrapModel};
 use crate::sources::electron_beam::BeamSize;
+use crate::sources::plasma::{PlasmaSettings, PlasmaSource};
 use crate::sources::rib_cycle::BreedingCycle;
 use crate::sources::trap_dynamics::DynamicsSwitches;
 use crate::sources::{BeamTrap, ElectronBeam, ElectronImpactSource, PhotonBeam, Source};
@@ -172,10 +173,13 @@ pub enum SourceSettings {
     BeamTrap(BeamTrapSettings),
     PhotonBeam(PhotonBeamSettings),
     ElectronImpact(ElectronImpactSettings),
+    /// The plasma source's own settings (the core struct; its residual gas is the
+    /// scenario's `[residual_gas_pa]`, filled in by [`SourceSettings::build`]).
+    Plasma(PlasmaSettings),
 }
 
 /// The source tables of the schema, in the order the documentation lists them.
-pub const SOURCE_KINDS: [&str; 3] = ["beam_trap", "photon_beam", "electron_impact"];
+pub const SOURCE_KINDS: [&str; 4] = ["beam_trap", "photon_beam", "electron_impact", "plasma"];
 
 impl SourceSettings {
     /// The table name that holds these settings in the file (also the module and class
@@ -185,15 +189,18 @@ impl SourceSettings {
             SourceSettings::BeamTrap(_) => SOURCE_KINDS[0],
             SourceSettings::PhotonBeam(_) => SOURCE_KINDS[1],
             SourceSettings::ElectronImpact(_) => SOURCE_KINDS[2],
+            SourceSettings::Plasma(_) => SOURCE_KINDS[3],
         }
     }
 
-    /// The beam energy the source runs at (electron or photon energy, eV).
+    /// The beam energy the source runs at (electron or photon energy, eV; for a plasma the
+    /// cold electron temperature kT_e, eV).
     pub fn energy_ev(&self) -> f64 {
         match self {
             SourceSettings::BeamTrap(t) => t.energy_ev,
             SourceSettings::PhotonBeam(p) => p.photon_energy_ev,
             SourceSettings::ElectronImpact(s) => s.energy_ev,
+            SourceSettings::Plasma(p) => p.electron_temperature_ev,
         }
     }
 
@@ -209,6 +216,11 @@ impl SourceSettings {
             )?),
             SourceSettings::ElectronImpact(s) => {
                 Source::ElectronImpact(ElectronImpactSource::new(s.energy_ev, s.energy_spread_ev)?)
+            }
+            SourceSettings::Plasma(p) => {
+                let mut settings = p.clone();
+                settings.residual_gas_pa = residual_gas_pa.to_vec();
+                Source::Plasma(PlasmaSource::new(settings)?)
             }
         })
     }
@@ -262,6 +274,14 @@ pub struct Separator {
     pub aq_range: Option<(f64, f64)>,
 }
 
+/// The `[uncertainty]` table: how many samples, the seed, and the core's factors.
+#[derive(Clone, Debug, PartialEq)]
+pub struct UncertaintySettings {
+    pub samples: usize,
+    pub seed: u64,
+    pub factors: crate::sources::uncertainty::UncertaintyFactors,
+}
+
 /// A checked scenario with every default filled in.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Scenario {
@@ -282,6 +302,8 @@ pub struct Scenario {
     /// The radioactive-beam breeding cycle of the target isotope (`[injection]`, beam trap
     /// only); its breeding time is the extraction time.
     pub injection: Option<BreedingCycle>,
+    /// Monte Carlo uncertainty bands (`[uncertainty]`, beam trap with the fixed model).
+    pub uncertainty: Option<UncertaintySettings>,
     /// Line (1-based) of every field and table written in the file, by dotted path
     /// (`beam_trap.energy_ev`, `species[1].name`).
     pub lines: BTreeMap<String, usize>,

@@ -16,7 +16,9 @@
 //!   wider than the Brillouin radius, so the current density is overstated (a note);
 //! * a time grid that starts after the target has been over-bred (mean charge already
 //!   above the target at the first time point);
-//! * a beam energy below the energy that opens the target charge state.
+//! * a beam energy below the energy that opens the target charge state;
+//! * a plasma electron temperature (cold or hot) above [`MAX_NONRELATIVISTIC_ENERGY_EV`]:
+//!   the Maxwellian rate coefficients of [`crate::sources::plasma`] are non-relativistic.
 
 use super::settings::{BeamTrapSettings, Scenario, SourceSettings};
 use crate::atoms::Element;
@@ -33,7 +35,7 @@ pub const MAX_PERVEANCE_A_V32: f64 = 2e-6;
 #[derive(Clone, Debug, PartialEq)]
 pub struct Warning {
     /// What is checked: "current_density", "beam_energy", "perveance", "brillouin_radius",
-    /// "time_grid", "target_threshold".
+    /// "time_grid", "target_threshold", "electron_temperature".
     pub what: &'static str,
     /// The offending value, in `unit`.
     pub value: f64,
@@ -101,6 +103,9 @@ pub fn beam_warnings(energy_ev: f64, current_a: f64, radius_m: f64) -> Vec<Warni
 /// Warnings about a source's settings (beam trap: the beam; the note on a Brillouin radius
 /// used without the cathode's parameters).
 pub fn source_warnings(source: &SourceSettings) -> Vec<Warning> {
+    if let SourceSettings::Plasma(p) = source {
+        return plasma_warnings(p);
+    }
     let SourceSettings::BeamTrap(t) = source else {
         return Vec::new();
     };
@@ -112,6 +117,30 @@ pub fn source_warnings(source: &SourceSettings) -> Vec<Warning> {
         out.push(w);
     }
     out
+}
+
+/// A plasma's electron temperatures (cold and hot) beyond the non-relativistic Maxwellian
+/// rate coefficients of the plasma model (kT_e ≲ 50 keV, its module documentation).
+fn plasma_warnings(p: &crate::sources::plasma::PlasmaSettings) -> Vec<Warning> {
+    let hot = p
+        .hot_electron_temperature_ev
+        .filter(|_| p.hot_electron_fraction > 0.0);
+    [Some(p.electron_temperature_ev), hot]
+        .into_iter()
+        .flatten()
+        .filter(|t| *t > MAX_NONRELATIVISTIC_ENERGY_EV)
+        .map(|t| {
+            Warning::new(
+                "electron_temperature",
+                t,
+                "eV",
+                format!(
+                    "the plasma's Maxwellian rate coefficients are non-relativistic, made for kT_e up to {MAX_NONRELATIVISTIC_ENERGY_EV} eV"
+                ),
+                "an electron temperature beyond the plasma model's range",
+            )
+        })
+        .collect()
 }
 
 fn brillouin_settings_note(t: &BeamTrapSettings) -> Option<Warning> {
@@ -147,8 +176,12 @@ pub fn energy_needed_ev(source: &SourceSettings, element: &Element, charge: u32)
     }
 }
 
-/// Warning when the source's energy cannot make the target charge state.
+/// Warning when the source's energy cannot make the target charge state (not for a plasma:
+/// the tail of a Maxwellian ionizes above any threshold).
 pub fn threshold_warning(s: &Scenario) -> Option<Warning> {
+    if let SourceSettings::Plasma(_) = s.source {
+        return None;
+    }
     let el = s.target.element();
     let need = energy_needed_ev(&s.source, el, s.target.charge);
     let e = s.source.energy_ev();

@@ -13,6 +13,7 @@ use super::convert::type_name;
 use super::photon_beam::PyChargeThreshold;
 use super::{guard, to_py};
 use crate::plan::{self, EnergyScan, ExtractionChoice, Report, Scenario, SourceSettings, CAUTIONS};
+use crate::sources::plasma::Confinement;
 
 // ---------------------------------------------------------------- the scenario
 
@@ -83,6 +84,19 @@ pub(crate) struct PySourceSettings {
     gas_feed_pa: Option<BTreeMap<String, f64>>,
     dynamic_processes: Option<Vec<String>>,
     injected_atoms: Option<f64>,
+    /// Plasma: the electron distribution, density and confinement, the gas and the
+    /// extraction (None for other kinds).
+    electron_temperature_ev: Option<f64>,
+    hot_electron_temperature_ev: Option<f64>,
+    hot_electron_fraction: Option<f64>,
+    electron_density_cm3: Option<f64>,
+    /// τ₁ (one value, with ``confinement_exponent``) or one time per charge 1, 2, … (s).
+    confinement_time_s: Option<Vec<f64>>,
+    confinement_exponent: Option<f64>,
+    neutral_residence_time_s: Option<f64>,
+    wall_recycling: Option<f64>,
+    plasma_volume_m3: Option<f64>,
+    extraction_fraction: Option<f64>,
 }
 
 impl From<&SourceSettings> for PySourceSettings {
@@ -127,6 +141,29 @@ impl From<&SourceSettings> for PySourceSettings {
                 energy_spread_ev: Some(e.energy_spread_ev),
                 ..Default::default()
             },
+            SourceSettings::Plasma(p) => {
+                let (times, exponent) = match &p.confinement {
+                    Confinement::Scaling { tau1_s, exponent } => (vec![*tau1_s], Some(*exponent)),
+                    Confinement::PerCharge(t) => (t.clone(), None),
+                };
+                PySourceSettings {
+                    kind,
+                    electron_temperature_ev: Some(p.electron_temperature_ev),
+                    hot_electron_temperature_ev: p.hot_electron_temperature_ev,
+                    hot_electron_fraction: Some(p.hot_electron_fraction),
+                    electron_density_cm3: Some(p.electron_density_cm3),
+                    confinement_time_s: Some(times),
+                    confinement_exponent: exponent,
+                    gas_feed_pa: Some(p.gas_feed_pa.iter().cloned().collect()),
+                    ion_temperature_ev: Some(p.ion_temperature_ev),
+                    gas_temperature_k: Some(p.gas_temperature_k),
+                    neutral_residence_time_s: Some(p.neutral_residence_time_s),
+                    wall_recycling: Some(p.wall_recycling),
+                    plasma_volume_m3: Some(p.plasma_volume_m3),
+                    extraction_fraction: Some(p.extraction_fraction),
+                    ..Default::default()
+                }
+            }
         }
     }
 }
@@ -341,6 +378,157 @@ impl PySpeciesEvolution {
     #[getter]
     fn fractions<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray2<f64>> {
         self.inner.fractions.to_pyarray(py)
+    }
+}
+
+/// One element of a plasma source at steady state; arrays over charge 0…Z.
+#[pyclass(name = "PlasmaElementState", module = "chargecast", frozen)]
+pub(crate) struct PyPlasmaElement {
+    inner: plan::PlasmaElement,
+}
+
+#[pymethods]
+impl PyPlasmaElement {
+    #[getter]
+    fn symbol(&self) -> &str {
+        &self.inner.symbol
+    }
+    /// Brought only by the residual gas.
+    #[getter]
+    fn residual(&self) -> bool {
+        self.inner.residual
+    }
+    #[getter]
+    fn atom_density_cm3(&self) -> f64 {
+        self.inner.atom_density_cm3
+    }
+    #[getter]
+    fn densities_cm3<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.densities_cm3.to_pyarray(py)
+    }
+    #[getter]
+    fn fractions<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.fractions.to_pyarray(py)
+    }
+    #[getter]
+    fn currents_eua<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.currents_eua.to_pyarray(py)
+    }
+    #[getter]
+    fn total_current_eua(&self) -> f64 {
+        self.inner.total_current_eua
+    }
+    #[getter]
+    fn mean_ion_charge(&self) -> f64 {
+        self.inner.mean_ion_charge
+    }
+}
+
+/// A plasma source at steady state: every element, the target's current, and the
+/// steady-state scan over the cold electron temperature.
+#[pyclass(name = "PlasmaReport", module = "chargecast", frozen)]
+pub(crate) struct PyPlasmaReport {
+    inner: plan::PlasmaReport,
+}
+
+#[pymethods]
+impl PyPlasmaReport {
+    /// Fed elements first, then residual-gas elements.
+    #[getter]
+    fn elements(&self) -> Vec<PyPlasmaElement> {
+        self.inner
+            .elements
+            .iter()
+            .map(|e| PyPlasmaElement { inner: e.clone() })
+            .collect()
+    }
+    #[getter]
+    fn electron_density_cm3(&self) -> f64 {
+        self.inner.electron_density_cm3
+    }
+    #[getter]
+    fn ion_charge_density_cm3(&self) -> f64 {
+        self.inner.ion_charge_density_cm3
+    }
+    #[getter]
+    fn isotope_share(&self) -> f64 {
+        self.inner.isotope_share
+    }
+    #[getter]
+    fn target_current_eua(&self) -> f64 {
+        self.inner.target_current_eua
+    }
+    #[getter]
+    fn scan_temperatures_ev<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.scan_temperatures_ev.to_pyarray(py)
+    }
+    #[getter]
+    fn scan_target_fraction<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.scan_target_fraction.to_pyarray(py)
+    }
+    #[getter]
+    fn scan_target_current_eua<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.scan_target_current_eua.to_pyarray(py)
+    }
+    #[getter]
+    fn best_temperature_ev(&self) -> f64 {
+        self.inner.best_temperature_ev
+    }
+    #[getter]
+    fn best_current_eua(&self) -> f64 {
+        self.inner.best_current_eua
+    }
+}
+
+/// Monte Carlo bands of the target (``[uncertainty]``): each triple is the 5th, 50th and
+/// 95th percentile.
+#[pyclass(name = "UncertaintyBands", module = "chargecast", frozen)]
+pub(crate) struct PyUncertaintyBands {
+    inner: plan::UncertaintyBands,
+}
+
+#[pymethods]
+impl PyUncertaintyBands {
+    #[getter]
+    fn samples(&self) -> usize {
+        self.inner.samples
+    }
+    #[getter]
+    fn seed(&self) -> u64 {
+        self.inner.seed
+    }
+    /// The factors as the scenario gave them (``ionization_factor``, ``recombination_factor``,
+    /// ``charge_exchange_factor``, ``charge_correlation``).
+    #[getter]
+    fn factors(&self) -> BTreeMap<&'static str, f64> {
+        let f = &self.inner.factors;
+        BTreeMap::from([
+            ("ionization_factor", f.ionization),
+            ("recombination_factor", f.recombination),
+            ("charge_exchange_factor", f.charge_exchange),
+            ("charge_correlation", f.charge_correlation),
+        ])
+    }
+    #[getter]
+    fn peak_time_s(&self) -> (f64, f64, f64) {
+        let [a, b, c] = self.inner.peak_time_s;
+        (a, b, c)
+    }
+    #[getter]
+    fn peak_fraction(&self) -> (f64, f64, f64) {
+        let [a, b, c] = self.inner.peak_fraction;
+        (a, b, c)
+    }
+    #[getter]
+    fn ions_per_extraction(&self) -> (f64, f64, f64) {
+        let [a, b, c] = self.inner.ions_per_extraction;
+        (a, b, c)
+    }
+    /// [3, T]: the target fraction's 5th, 50th and 95th percentile at every time.
+    #[getter]
+    fn target_fraction<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyArray2<f64>>> {
+        let rows: Vec<Vec<f64>> = self.inner.target_fraction.to_vec();
+        Ok(PyArray2::from_vec2(py, &rows)?)
     }
 }
 
@@ -995,10 +1183,26 @@ impl PyReport {
         CAUTIONS
     }
     /// The model of the evolution: "fixed" or "dynamic" (beam trap), "fixed" (photon
-    /// beam), "single_collision" (electron impact).
+    /// beam), "single_collision" (electron impact), "plasma_balance" (plasma).
     #[getter]
     fn model(&self) -> &'static str {
         self.inner.model()
+    }
+    /// A plasma source's steady state, currents (eµA) and temperature scan (else None).
+    #[getter]
+    fn plasma(&self) -> Option<PyPlasmaReport> {
+        self.inner
+            .plasma
+            .clone()
+            .map(|inner| PyPlasmaReport { inner })
+    }
+    /// Monte Carlo bands of the target (``[uncertainty]``; else None).
+    #[getter]
+    fn uncertainty(&self) -> Option<PyUncertaintyBands> {
+        self.inner
+            .uncertainty
+            .clone()
+            .map(|inner| PyUncertaintyBands { inner })
     }
     /// What the ion-dynamics model adds (model "dynamic"; else None).
     #[getter]
@@ -1034,6 +1238,9 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyChargeSummary>()?;
     m.add_class::<PySpeciesEvolution>()?;
     m.add_class::<PyIons>()?;
+    m.add_class::<PyPlasmaElement>()?;
+    m.add_class::<PyPlasmaReport>()?;
+    m.add_class::<PyUncertaintyBands>()?;
     m.add_class::<PyBestEnergy>()?;
     m.add_class::<PyLineColumns>()?;
     m.add_class::<PyInterferer>()?;

@@ -32,8 +32,9 @@ def test_report_figures_render_without_warnings(name: str, outdir: Path) -> None
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         files = report.save_plots(outdir / name)
-    # Four figures for every report; the dynamic trap model adds kT and overlap.
-    assert len(files) == (5 if report.model == "dynamic" else 4)
+    # Four figures for every report; the dynamic trap model adds kT and overlap, a plasma
+    # source the analysed beam over its whole A/q range.
+    assert len(files) == (5 if report.model in ("dynamic", "plasma_balance") else 4)
     for f in files:
         assert f.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n", f
         assert f.stat().st_size > 5000, f
