@@ -33,10 +33,12 @@ def subshell_photoionization_cross_sections_cm2(
 ) -> dict[str, Any]:
     """Photoionization cross section of every occupied subshell of one ion.
 
-    Above 100 eV (after scaling to the ion) the neutral atom's Elam photoabsorption, shared
-    among subshells by edge jump ratios and scaled hydrogenically to the ion's binding
-    energies, blended toward the hydrogenic result by the fraction q/(Z−1) of the other
-    electrons removed; below that the hydrogenic model (exact Stobbe 1s, Kramers for n ≥ 2).
+    The Verner et al. (1996) subshell fits where the ion has them; otherwise the neutral
+    atom's measured total (Elam et al. 2002 above 200 eV, Henke et al. 1993 below 100 eV,
+    blended between), shared among subshells by edge jump ratios and scaled hydrogenically
+    to the ion's binding energies, blended toward the hydrogenic result by the fraction
+    q/(Z−1) of the other electrons removed; where no table reaches, the hydrogenic model
+    (exact Stobbe 1s, Kramers for n ≥ 2).
 
     Parameters
     ----------

@@ -598,8 +598,8 @@ impl PyElementSelectivity {
 /// max_charge : ndarray of int
 ///     Highest charge one photon can make.
 /// cross_section_cm2 : ndarray
-///     Photoionization cross section of the neutral atom at hν (cm²), hydrogenic model
-///     below 100 eV (a factor-of-several estimate).
+///     Photoionization cross section of the neutral atom at hν (cm²): Verner et al. (1996)
+///     fits, or below 100 eV the Henke et al. (1993) totals where no fit exists.
 /// ionized, not_ionized : list of str
 ///     Symbols of the elements the photon ionizes, and of those it leaves neutral.
 /// rows : list of ElementSelectivity
