@@ -108,5 +108,6 @@ PALETTE = ["#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#F
 def require_type(name: str, value: Any, kind: Any, allowed: str) -> None:
     """Raise ``ArgumentTypeError`` (a ``TypeError``) naming ``name`` unless ``value`` is a
     ``kind``: the Python layer's one check for arguments the core does not see first."""
-    if not isinstance(value, kind) or isinstance(value, bool) and kind is not bool:
+    kinds = kind if isinstance(kind, tuple) else (kind,)
+    if not isinstance(value, kinds) or isinstance(value, bool) and bool not in kinds:
         raise _core.ArgumentTypeError(f"invalid {name}: {type(value).__name__} given, must be {allowed}")

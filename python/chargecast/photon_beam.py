@@ -11,7 +11,7 @@ from typing import Any, Union
 import numpy as np
 
 from chargecast import _core
-from chargecast._util import as_float_array, as_int, require_pandas, restore
+from chargecast._util import as_float_array, as_int, require_pandas, require_type, restore
 from chargecast.beam_trap import EnergyScan
 
 ElementLike = Union[str, int]
@@ -139,6 +139,7 @@ def vacancy_relaxation(
     >>> round(float(np.dot(np.arange(1, p.size + 1), p)), 1)  # mean charge after an argon K hole
     4.3
     """
+    require_type("multi_electron", multi_electron, (bool, np.bool_), "True or False")
     return _core._vacancy_relaxation(element, _charge(charge), str(subshell), energy_ev, bool(multi_electron))
 
 

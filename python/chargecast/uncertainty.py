@@ -35,6 +35,8 @@ BAND_PERCENTILES = (5.0, 50.0, 95.0)
 def uncertainty_factors(factors: Optional[Mapping[str, float]] = None) -> dict[str, float]:
     """The defaults with ``factors`` applied; unknown names raise InvalidParameterError."""
     out = dict(DEFAULT_FACTORS)
+    if factors is not None:
+        require_type("factors", factors, Mapping, "a mapping of process name to factor")
     for name, value in (factors or {}).items():
         if name not in out:
             raise _core.InvalidParameterError(
@@ -202,6 +204,9 @@ def evolve_bands(
 ) -> EvolutionBands:
     """Monte Carlo bands of ``trap.evolve(element, times_s)``; with a ``dask.distributed``
     ``client`` the samples run on its workers in chunks of ``chunk`` (same bits as local)."""
+    require_type("samples", samples, (int, np.integer), "an int >= 1")
+    require_type("seed", seed, (int, np.integer), "an int >= 0")
+    require_type("chunk", chunk, (int, np.integer), "an int >= 1")
     nominal = trap.evolve(element, times_s, initial_charge=initial_charge)
     used = uncertainty_factors(factors)
     if client is None:
