@@ -185,7 +185,12 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         }
     };
 
-    let residual_fractions = residual_fractions(s, &source, extraction.map(|e| e.0))?;
+    // With the dynamic model the background ions are the run's own (fed and residual gas,
+    // from the partial pressures) and already among its spectrum inputs.
+    let residual_fractions = match &dynamics {
+        Some(d) => super::dynamics::background(s, d),
+        None => residual_fractions(s, &source, extraction.map(|e| e.0))?,
+    };
     let injection = match (&source, &s.injection) {
         (Source::BeamTrap(trap), Some(c)) => Some(run_cycle(trap, c, &[])?),
         _ => None,
@@ -220,7 +225,11 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         s,
         &source,
         &fractions_at_extraction,
-        &residual_fractions,
+        if dynamic_inputs.is_some() {
+            &[]
+        } else {
+            &residual_fractions
+        },
         injection.as_ref(),
         dynamic_inputs,
     )?;

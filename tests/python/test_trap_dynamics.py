@@ -158,8 +158,13 @@ def test_a_deeper_barrier_holds_ions_longer():
 
 
 def test_no_coolant_no_coolant_ions():
-    run = _trap().evolve({"Ar": 1e7}, [1e-3])
+    run = _trap(0.0).evolve({"Ar": 1e7}, [1e-3])
     assert run.species == ["Ar"]
+    # The residual H2 is a source of hydrogen ions by default, a charge-exchange target only
+    # without "residual_gas_ions".
+    assert _trap().evolve({"Ar": 1e7}, [1e-3]).species == ["Ar", "H"]
+    only_cx = ["overlap", "heating", "exchange", "escape", "space_charge"]
+    assert _trap(dynamic_processes=only_cx).evolve({"Ar": 1e7}, [1e-3]).species == ["Ar"]
     with pytest.raises(cc.InvalidParameterError, match="the run holds Ar"):
         run.ions("N")
     fed = _trap(gas_feed_pa={"N2": 1e-8}).evolve({"Ar": 1e7}, [1e-3])

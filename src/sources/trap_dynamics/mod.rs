@@ -324,14 +324,18 @@ impl TrapDynamics {
 
 impl TrapDynamics {
     /// The gases whose ions the run makes: the feeds, and the trap's residual gas unless
-    /// `residual_gas_ions` is off.
+    /// `residual_gas_ions` is off; gases at zero pressure make none and add no species.
     pub(crate) fn ion_sources<'a>(&'a self, trap: &'a BeamTrap) -> Vec<&'a GasComponent> {
         let residual: &[GasComponent] = if self.switches.residual_gas_ions {
             &trap.residual_gas
         } else {
             &[]
         };
-        self.gas_feed.iter().chain(residual).collect()
+        self.gas_feed
+            .iter()
+            .chain(residual)
+            .filter(|g| g.pressure_pa > 0.0)
+            .collect()
     }
 }
 
