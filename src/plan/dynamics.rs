@@ -42,7 +42,8 @@ pub struct DynamicChargeRow {
 pub struct DynamicSpeciesRow {
     /// "Ar", "129Xe", or a fed gas's element ("N").
     pub label: String,
-    /// Fed continuously (an element of a `gas_feed_pa` gas that is not a scenario species).
+    /// Fed continuously: an element of a `gas_feed_pa` gas or (with `residual_gas_ions`) of
+    /// the residual gas that is not a scenario species.
     pub fed_only: bool,
     /// Ions (charge ≥ 1) in the trap.
     pub ions: f64,

@@ -474,7 +474,8 @@ def test_every_report_names_its_model(report: cc.Report, coolant_reports: Pair) 
         "compensation",
         "radial well depth",
         "bookkeeping",
-        "N (fed gas)",
+        "N (gas)",
+        "A/q spectrum: absolute ions per extraction",
         "the energy scan (best and robust energy) uses the fixed model",
         "Cautions",
     ):
@@ -485,6 +486,7 @@ def test_every_report_names_its_model(report: cc.Report, coolant_reports: Pair) 
     dyn = d["dynamics"]
     assert [row["charge"] for row in dyn["target_and_neighbours"]] == [15, 16, 17, 18]
     assert dyn["bookkeeping"]["particle_balance"] < 1e-9
+    assert dyn["aq_intensity_unit"].startswith("ions per extraction")
 
 
 def test_dynamic_figure_and_html(coolant_reports: Pair, tmp_path: Path) -> None:
