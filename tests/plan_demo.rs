@@ -108,8 +108,11 @@ fn the_coolant_raises_the_targets_fraction() {
         end.push((evo.fractions[[last, q]], ar.temperatures_ev[[last, q]]));
     }
     let (cooled, hot) = (end[0], end[1]);
+    // Both runs hold the residual H2's hydrogen ions (residual_gas_ions by default), a light
+    // coolant of their own: the fed N2 adds ×1.21 to that (measured with the Python
+    // extension, 2026-12-03; ×1.58 with the residual gas a charge-exchange target only).
     assert!(
-        cooled.0 > 1.3 * hot.0,
+        cooled.0 > 1.15 * hot.0,
         "Ar17+ {:.4} with, {:.4} without",
         cooled.0,
         hot.0

@@ -462,9 +462,9 @@ class _TextReport:
             f"{c.repetition_rate_hz:.4g} Hz, bred {c.breeding_time_s:.4g} s",
             "  decay daughters enter the network "
             + (
-                "at their parent's charge state (daughter_charge = \"parent\")"
+                'at their parent\'s charge state (daughter_charge = "parent")'
                 if c.daughter_charge == "parent"
-                else "keeping the parent's electrons, at q + ΔZ (daughter_charge = \"electrons_kept\")"
+                else 'keeping the parent\'s electrons, at q + ΔZ (daughter_charge = "electrons_kept")'
             )
             + "; shake-off would raise them further",
             f"  per bunch: decayed before injection {c.decayed_before_injection:.3e}, not captured "
