@@ -224,6 +224,7 @@ def to_dict(report: Any) -> dict[str, Any]:
             "ions_per_bunch": c.ions_per_bunch,
             "repetition_rate_hz": c.repetition_rate_hz,
             "breeding_time_s": c.breeding_time_s,
+            "daughter_charge": c.daughter_charge,
             "decayed_before_injection": c.decayed_before_injection,
             "not_captured": c.not_captured,
             "extracted_per_bunch": float(c.trapped[-1]),
@@ -343,6 +344,7 @@ def _dynamics(d: Any) -> dict[str, Any]:
         ],
         "compensation": d.compensation,
         "well_depth_v": d.well_depth_v,
+        "aq_intensity_unit": "ions per extraction (analyte and gas ions alike)",
         "bookkeeping": {
             "particles": d.particles,
             "energy_ev": d.energy_ev,

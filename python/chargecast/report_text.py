@@ -501,7 +501,7 @@ class _TextReport:
         ]
         species = [
             [
-                sp.label + (" (fed gas)" if sp.fed_only else ""),
+                sp.label + (" (gas)" if sp.fed_only else ""),
                 _g(sp.ions, ".3e"),
                 _g(sp.mean_charge, ".2f"),
                 _g(sp.mean_temperature_ev, ".4g"),
@@ -519,8 +519,12 @@ class _TextReport:
             "",
             "  species in the trap",
             *_table(["species", "ions", "mean charge", "mean kT (eV)", "escape (ions/s)"], species),
+            "  (gas): ions of the fed gases and, unless residual_gas_ions is off, of the residual gas "
+            "(molecules dissociated into atomic ions), made from their partial pressures",
             f"  compensation {d.compensation:.3g} of the electrons' charge; "
             f"radial well depth {d.well_depth_v:.4g} V",
+            "  A/q spectrum: absolute ions per extraction for the target and the gas ions alike "
+            "(purities are against this background)",
         ]
         if target_row is not None:
             out.append(
@@ -587,6 +591,13 @@ class _TextReport:
             "",
             f"Radioactive-beam cycle: {c.ions_per_bunch:.3e} {parent} ions per bunch at "
             f"{c.repetition_rate_hz:.4g} Hz, bred {c.breeding_time_s:.4g} s",
+            "  decay daughters enter the network "
+            + (
+                'at their parent\'s charge state (daughter_charge = "parent")'
+                if c.daughter_charge == "parent"
+                else 'keeping the parent\'s electrons, at q + ΔZ (daughter_charge = "electrons_kept")'
+            )
+            + "; shake-off would raise them further",
             f"  per bunch: decayed before injection {c.decayed_before_injection:.3e}, not captured "
             f"{c.not_captured:.3e}; at extraction: extracted {c.trapped[-1]:.3e}, decayed in the trap "
             f"{c.decayed[-1] - c.decayed_before_injection:.3e}, lost {c.lost[-1] - c.not_captured:.3e}",

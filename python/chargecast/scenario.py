@@ -55,7 +55,9 @@ Source: exactly one of
     e.g. ``{ N2 = 2e-9 }``, Pa, the gases of the residual-gas table; default none; a fed
     gas's elements join the run as species of their own), ``dynamic_processes`` (the
     processes on, default ``"overlap"``, ``"heating"``, ``"exchange"``, ``"escape"``,
-    ``"space_charge"``; add ``"ionization_heating"``), ``injected_atoms`` (atoms of all
+    ``"space_charge"``, ``"residual_gas_ions"`` (the residual gas is ionized like a fed
+    gas, its molecules dissociated into atomic ions; leave it out to keep the residual gas a
+    charge-exchange target only); add ``"ionization_heating"``), ``injected_atoms`` (atoms of all
     species injected into the beam at t = 0, > 0; default: as many as ions at the target
     charge would fill ``compensation`` of the electrons' charge). With the dynamic model
     species enter neutral, the report adds temperatures, escape fluxes (leaky-mode

@@ -14,7 +14,7 @@ pub const PROCESSES: [&str; 6] = Processes::NAMES;
 /// Ion models of a beam trap (the core's list, the default first).
 pub const MODELS: [&str; 2] = TrapModel::NAMES;
 /// Processes of the dynamic model (the core's list).
-pub const DYNAMIC_PROCESSES: [&str; 6] = DynamicsSwitches::NAMES;
+pub const DYNAMIC_PROCESSES: [&str; 7] = DynamicsSwitches::NAMES;
 /// Peak shapes of the separator.
 pub const PEAK_SHAPES: [&str; 3] = ["gaussian", "triangular", "rectangular"];
 pub const DEFAULT_PEAK_SHAPE: &str = "gaussian";

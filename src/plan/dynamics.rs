@@ -42,7 +42,8 @@ pub struct DynamicChargeRow {
 pub struct DynamicSpeciesRow {
     /// "Ar", "129Xe", or a fed gas's element ("N").
     pub label: String,
-    /// Fed continuously (an element of a `gas_feed_pa` gas that is not a scenario species).
+    /// Fed continuously: an element of a `gas_feed_pa` gas or (with `residual_gas_ions`) of
+    /// the residual gas that is not a scenario species.
     pub fed_only: bool,
     /// Ions (charge ≥ 1) in the trap.
     pub ions: f64,
@@ -260,11 +261,12 @@ pub(crate) fn ions_per_extraction(
 }
 
 /// The species of the A/q spectrum with the dynamic model: every species in the trap at
-/// `t_ex` (fed gases included, marked like residual gas), its amount the particles still
-/// trapped in the scenario's amount unit (`Σ amount` per injected atom), so that escaped
-/// ions are not counted as extracted and the fed gases' ions stand beside the target.
+/// `t_ex` (fed and residual gases included, marked as background), its amount the
+/// particles still trapped — absolute numbers per extraction for the analyte and the
+/// background alike, so the spectrum's purities weigh the scenario's ions against the
+/// residual-gas ions the partial pressures make, and escaped ions are not counted as
+/// extracted.
 pub(crate) fn spectrum_inputs(s: &Scenario, d: &DynamicReport) -> Vec<SpeciesInput> {
-    let unit = s.species.iter().map(|sp| sp.amount).sum::<f64>() / d.injected_atoms;
     let times = &d.run.times_s;
     d.run
         .species
@@ -274,7 +276,7 @@ pub(crate) fn spectrum_inputs(s: &Scenario, d: &DynamicReport) -> Vec<SpeciesInp
             let total: f64 = n.iter().sum();
             SpeciesInput {
                 spec: h.label.clone(),
-                amount: total * unit,
+                amount: total,
                 fractions: if total > 0.0 {
                     n.iter().map(|v| v / total).collect()
                 } else {
@@ -283,5 +285,16 @@ pub(crate) fn spectrum_inputs(s: &Scenario, d: &DynamicReport) -> Vec<SpeciesInp
                 residual: !s.species.iter().any(|x| x.name == h.label),
             }
         })
+        .collect()
+}
+
+/// The background of the dynamic run (the species of the fed and residual gases that are
+/// not scenario species): label, particles in the trap at extraction, charge fractions —
+/// the report's residual-gas table, in absolute numbers.
+pub(crate) fn background(s: &Scenario, d: &DynamicReport) -> Vec<(String, f64, Vec<f64>)> {
+    spectrum_inputs(s, d)
+        .into_iter()
+        .filter(|i| i.residual && i.amount > 0.0)
+        .map(|i| (i.spec, i.amount, i.fractions))
         .collect()
 }

@@ -250,15 +250,18 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         }
     };
 
-    let residual_fractions = match &plasma {
-        // A plasma's residual-gas elements, weighted by their extracted current (eµA).
-        Some(pr) => pr
+    // A plasma's residual-gas elements are weighted by their extracted current (eµA); with
+    // the dynamic model the background ions are the run's own (fed and residual gas, from
+    // the partial pressures) and already among its spectrum inputs.
+    let residual_fractions = match (&plasma, &dynamics) {
+        (Some(pr), _) => pr
             .elements
             .iter()
             .filter(|e| e.residual && e.total_current_eua > 0.0)
             .map(|e| (e.symbol.clone(), e.total_current_eua, e.current_shares()))
             .collect(),
-        None => residual_fractions(s, &source, extraction.map(|e| e.0))?,
+        (None, Some(d)) => super::dynamics::background(s, d),
+        (None, None) => residual_fractions(s, &source, extraction.map(|e| e.0))?,
     };
     let injection = match (&source, &s.injection) {
         (Source::BeamTrap(trap), Some(c)) => Some(run_cycle(trap, c, &[])?),
@@ -296,7 +299,11 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         s,
         &source,
         &fractions_at_extraction,
-        &residual_fractions,
+        if dynamic_inputs.is_some() {
+            &[]
+        } else {
+            &residual_fractions
+        },
         injection.as_ref(),
         dynamic_inputs,
     )?;

@@ -74,7 +74,9 @@ use crate::sources::beam_trap::{
 ///     ``{"N2": 1e-7}`` for a light coolant; dynamic model. Their elements join the run.
 /// dynamic_processes : sequence of str, optional
 ///     Subset of ``("overlap", "heating", "exchange", "escape", "ionization_heating",
-///     "space_charge")``; all but ``"ionization_heating"`` by default; dynamic model.
+///     "space_charge", "residual_gas_ions")``; all but ``"ionization_heating"`` by
+///     default; dynamic model. ``"residual_gas_ions"``: the residual gas makes ions (its
+///     molecules dissociated into atomic ions); without it, charge exchange only.
 ///
 /// Examples
 /// --------

@@ -196,6 +196,12 @@ impl PyBreedingCycle {
     fn repetition_rate_hz(&self) -> f64 {
         self.result.repetition_rate_hz
     }
+    /// The daughters' entry charge rule: ``"parent"`` (the parent's charge state) or
+    /// ``"electrons_kept"`` (q + ΔZ: the parent's electrons stay).
+    #[getter]
+    fn daughter_charge(&self) -> &'static str {
+        self.result.daughter_charge.label()
+    }
     /// Ions arriving per bunch.
     #[getter]
     fn ions_per_bunch(&self) -> f64 {

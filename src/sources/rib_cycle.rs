@@ -305,6 +305,8 @@ pub struct CycleResult {
     /// in the trap or lost).
     pub decayed_in_trap: Vec<f64>,
     pub repetition_rate_hz: f64,
+    /// The rule the daughters' entry charge followed (reports name it).
+    pub daughter_charge: DaughterCharge,
 }
 
 impl CycleResult {
@@ -469,6 +471,7 @@ pub fn run_cycle(trap: &BeamTrap, cycle: &BreedingCycle, times_s: &[f64]) -> Res
         lost_in_trap: (0..times.len()).map(|t| pops[[t, lost_parent]]).collect(),
         decayed_in_trap,
         repetition_rate_hz: cycle.repetition_rate_hz,
+        daughter_charge: cycle.daughter_charge,
         nuclides,
     })
 }

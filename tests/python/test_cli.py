@@ -333,7 +333,8 @@ def test_the_coolant_scenario_by_name_reports_its_dynamics(tmp_path: Path) -> No
     d = json.loads(r.stdout)
     assert d["model"] == "dynamic" and d["scenario"]["source"]["model"] == "dynamic"
     assert d["dynamics"]["gas_feed_pa"] == {"N2": 2e-9}
-    assert {row["label"] for row in d["dynamics"]["species"]} == {"Ar", "N"}
+    # The fed N2's nitrogen and the residual H2's hydrogen (residual_gas_ions by default).
+    assert {row["label"] for row in d["dynamics"]["species"]} == {"Ar", "N", "H"}
     names = sorted(Path(f).name for f in d["figures"])
     assert names == sorted(
         ["aq_spectrum.png", "breeding_ladder.png", "energy_time_map.png", "evolution.png", "ion_dynamics.png"]

@@ -3,6 +3,7 @@ ions from partial pressures. External references are named beside each check."""
 
 from __future__ import annotations
 
+import json
 import math
 
 import numpy as np
@@ -84,6 +85,8 @@ def test_cycle_bookkeeping_and_bateman_parent() -> None:
         times_s=[0.02, 0.05],
     )
     assert run.nuclides == ["97Rb", "97Sr"]
+    # The result names the daughters' entry-charge rule (the default: the parent's charge).
+    assert run.daughter_charge == "parent"
     total = run.trapped + run.decayed + run.lost
     np.testing.assert_allclose(total, run.ions_per_bunch, rtol=1e-9)
     # Parent in the trap: captured × exp(−λ t) (Bateman 1910, first member), captured =
@@ -116,7 +119,10 @@ def test_cycle_arguments_are_checked() -> None:
 
 def test_residual_gas_ions_follow_the_pressures() -> None:
     # n = p / (k_B T) with k_B from scipy.constants; V = π r² L; early on every ion made
-    # stays: N ≈ n V ν (j/e) σ₀ t, σ₀ the neutral-atom Lotz cross section.
+    # stays: N ≈ n V (j/e) σ_CO t, σ_CO = σ_C + σ_O the additivity rule (Otvos & Stevenson
+    # 1956) over the neutral atoms' Lotz cross sections, and the CO⁺ ion dissociates into C⁺
+    # or O⁺ as 4.5 : 1.7, the atomic ions of CO's 70 eV pattern in data/fragments.csv (NIST
+    # Chemistry WebBook EI spectrum, from memory).
     trap = small_trap()
     t = 1e-5
     ions = cc.residual_gas_ions(trap, t)
@@ -124,7 +130,24 @@ def test_residual_gas_ions_follow_the_pressures() -> None:
     n_cm3 = 2e-10 / (sc.k * 300.0) * 1e-6
     v_cm3 = math.pi * (100e-6 * 100) ** 2 * 60.0
     flux = 0.3 / (math.pi * (100e-6 * 100) ** 2) / sc.e
-    sigma = float(cc.lotz_cross_section_cm2("C", charge=0, energies_ev=6000.0))
-    np.testing.assert_allclose(ions["C"].sum(), n_cm3 * v_cm3 * flux * sigma * t, rtol=1e-9)
+    sigma = sum(float(cc.lotz_cross_section_cm2(el, charge=0, energies_ev=6000.0)) for el in ("C", "O"))
+    np.testing.assert_allclose(ions["C"].sum(), n_cm3 * v_cm3 * flux * sigma * t * 4.5 / 6.2, rtol=1e-9)
+    np.testing.assert_allclose(ions["C"].sum() / ions["O"].sum(), 4.5 / 1.7, rtol=1e-6)
     twice = cc.BeamTrap(trap.beam, 0.6, residual_gas_pa={"H2": 2e-9, "CO": 4e-10})
     np.testing.assert_allclose(cc.residual_gas_ions(twice, t)["O"].sum(), 2 * ions["O"].sum(), rtol=1e-6)
+
+
+def test_the_cycle_and_its_report_name_the_daughter_charge_rule() -> None:
+    kept = cc.breeding_cycle(
+        small_trap(),
+        "97Rb",
+        repetition_rate_hz=10.0,
+        ions_per_s=1e6,
+        max_nuclides=2,
+        daughter_charge="electrons_kept",
+        times_s=[0.02],
+    )
+    assert kept.daughter_charge == "electrons_kept"
+    report = cc.load_scenario(cc.bundled_scenarios()["radioactive_beam"]).run()
+    assert 'daughter_charge = "parent"' in cc.report_text.render(report)
+    assert json.loads(report.to_json())["injection"]["daughter_charge"] == "parent"

@@ -158,11 +158,16 @@ def test_a_deeper_barrier_holds_ions_longer():
 
 
 def test_no_coolant_no_coolant_ions():
-    run = _trap().evolve({"Ar": 1e7}, [1e-3])
+    run = _trap(0.0).evolve({"Ar": 1e7}, [1e-3])
     assert run.species == ["Ar"]
+    # The residual H2 is a source of hydrogen ions by default, a charge-exchange target only
+    # without "residual_gas_ions".
+    assert _trap().evolve({"Ar": 1e7}, [1e-3]).species == ["Ar", "H"]
+    only_cx = ["overlap", "heating", "exchange", "escape", "space_charge"]
+    assert _trap(dynamic_processes=only_cx).evolve({"Ar": 1e7}, [1e-3]).species == ["Ar"]
     with pytest.raises(cc.InvalidParameterError, match="the run holds Ar"):
         run.ions("N")
-    fed = _trap(gas_feed_pa={"N2": 1e-8}).evolve({"Ar": 1e7}, [1e-3])
+    fed = _trap(0.0, gas_feed_pa={"N2": 1e-8}).evolve({"Ar": 1e7}, [1e-3])
     assert fed.species == ["Ar", "N"] and fed.ions("N")[0].sum() > 0
 
 
@@ -178,7 +183,8 @@ def test_result_views():
     pytest.importorskip("pandas")
     run = _trap().evolve({"Ar": 1e7}, [1e-4, 1e-3])
     frame = run.to_pandas()
-    assert len(frame) == 2 * 19 and frame.attrs["model"] == "dynamic"
+    # Two times × (Ar 0…18 and H 0…1 from the residual H2).
+    assert len(frame) == 2 * (19 + 2) and frame.attrs["model"] == "dynamic"
     assert "model='dynamic'" in repr(run)
     assert run.compensation.shape == run.well_depth_v.shape == (2,)
     pytest.importorskip("matplotlib")

@@ -146,6 +146,8 @@ fn daughters_enter_at_the_parent_charge_or_keep_the_electrons() {
         let c = BreedingCycle::new(37, 97, Injection::PerBunch(1.0), 1.0, 1.0, 0.1, 5, mode, 2)
             .unwrap();
         let r = run_cycle(&t, &c, &[]).unwrap();
+        // The result names the rule it used.
+        assert_eq!(r.daughter_charge, mode);
         let sr = r.extracted_per_bunch(1);
         let populated: Vec<usize> = (0..sr.len()).filter(|&q| sr[q] > 0.0).collect();
         assert_eq!(populated, vec![5 + offset], "{mode:?}");

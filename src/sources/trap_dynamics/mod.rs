@@ -30,9 +30,17 @@
 //!   at `v̄/L`;
 //! - optional ionization heating: an ion ionized inside the beam gains the mean potential
 //!   `⟨φ⟩` of its place in the well (see `processes::radial_well`);
-//! - gas feeds: fed neutral gas of density `n₀ = p/(k_B T_gas)` (each molecule counted as its
-//!   atoms, as if dissociated at once) is ionized inside the beam volume, `n₀ π r_e² L (j/e)
-//!   σ₀(E)` new 1+ ions per second born at the gas temperature;
+//! - gas feeds and residual gas: neutral gas of density `n₀ = p/(k_B T_gas)` is ionized
+//!   inside the beam volume at `n₀ π r_e² L (j/e) σ(E)` per second — σ a noble gas atom's
+//!   single-ionization cross section (the network's 0 → 1 step), a molecule's additivity
+//!   cross section — and a molecular ion dissociates at once into one atomic ion, its
+//!   element and charge shared by the bundled fragmentation pattern, while the neutral
+//!   fragments leave (see [`crate::sources::residual_gas`] for the rule, its sources and the
+//!   rate estimate that lets molecular ions go unkept). The new ions are born at the gas
+//!   temperature (the few eV of dissociation energy are neglected: our approximation). The
+//!   trap's residual gas (`residual_gas_pa`, a continuous source in a real trap) is such a
+//!   source by default; with the switch `residual_gas_ions` off it is only a
+//!   charge-exchange target, as in the fixed model;
 //! - the space-charge limit: compensation `c = Σ q N / N_e` (N_e = IL/(ev)) sets the well
 //!   `φ₀(1 − c)`; it replaces the fixed compensation when `space_charge` is on.
 //!
@@ -107,6 +115,9 @@ pub struct DynamicsSwitches {
     pub ionization_heating: bool,
     /// Compensation and well depth from the trapped charge (else the trap's fixed value).
     pub space_charge: bool,
+    /// The trap's residual gas (`residual_gas_pa`) is ionized in the beam like a fed gas,
+    /// so its ions are populations of the run; off, it is a charge-exchange target only.
+    pub residual_gas_ions: bool,
 }
 
 impl Default for DynamicsSwitches {
@@ -118,22 +129,24 @@ impl Default for DynamicsSwitches {
             escape: true,
             ionization_heating: false,
             space_charge: true,
+            residual_gas_ions: true,
         }
     }
 }
 
 impl DynamicsSwitches {
     /// Names of the dynamic processes, in the order of the fields.
-    pub const NAMES: [&'static str; 6] = [
+    pub const NAMES: [&'static str; 7] = [
         "overlap",
         "heating",
         "exchange",
         "escape",
         "ionization_heating",
         "space_charge",
+        "residual_gas_ions",
     ];
 
-    fn flags(&mut self) -> [&mut bool; 6] {
+    fn flags(&mut self) -> [&mut bool; 7] {
         [
             &mut self.overlap,
             &mut self.heating,
@@ -141,6 +154,7 @@ impl DynamicsSwitches {
             &mut self.escape,
             &mut self.ionization_heating,
             &mut self.space_charge,
+            &mut self.residual_gas_ions,
         ]
     }
 
@@ -172,7 +186,8 @@ impl DynamicsSwitches {
             .collect()
     }
 
-    /// Everything off: the fixed-temperature model, solved as a nonlinear system.
+    /// Everything off: the fixed-temperature model, solved as a nonlinear system (the
+    /// residual gas a charge-exchange target only, as there).
     pub fn none() -> Self {
         DynamicsSwitches {
             overlap: false,
@@ -181,6 +196,7 @@ impl DynamicsSwitches {
             escape: false,
             ionization_heating: false,
             space_charge: false,
+            residual_gas_ions: false,
         }
     }
 }
@@ -268,11 +284,11 @@ impl TrapDynamics {
         if trap.photon_beam.is_some() {
             return Err(photon_beam_error());
         }
-        if loads.is_empty() && self.gas_feed.is_empty() {
+        if loads.is_empty() && self.ion_sources(trap).is_empty() {
             return Err(Error::invalid(
                 "species",
                 "none",
-                "give at least one species with its initial number of atoms, or a gas feed",
+                "give at least one species with its initial number of atoms, or a gas feed (or residual gas with residual_gas_ions on)",
             ));
         }
         let mut species: Vec<(String, Species, f64)> = Vec::new();
@@ -289,7 +305,7 @@ impl TrapDynamics {
             }
             species.push((label, sp, *ions));
         }
-        for feed in &self.gas_feed {
+        for feed in self.ion_sources(trap) {
             for (symbol, _) in feed.gas.atoms {
                 let sp = parse_species(symbol)?;
                 let label = label(&sp);
@@ -303,6 +319,23 @@ impl TrapDynamics {
             .map(|(label, sp, ions)| SpeciesRates::new(trap, self, label, sp, *ions))
             .collect::<Result<Vec<_>>>()?;
         TrapSystem::new(trap, self, rates)
+    }
+}
+
+impl TrapDynamics {
+    /// The gases whose ions the run makes: the feeds, and the trap's residual gas unless
+    /// `residual_gas_ions` is off; gases at zero pressure make none and add no species.
+    pub(crate) fn ion_sources<'a>(&'a self, trap: &'a BeamTrap) -> Vec<&'a GasComponent> {
+        let residual: &[GasComponent] = if self.switches.residual_gas_ions {
+            &trap.residual_gas
+        } else {
+            &[]
+        };
+        self.gas_feed
+            .iter()
+            .chain(residual)
+            .filter(|g| g.pressure_pa > 0.0)
+            .collect()
     }
 }
 

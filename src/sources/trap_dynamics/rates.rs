@@ -6,7 +6,6 @@ use crate::atoms::Species;
 use crate::constants::{BOLTZMANN_EV_K, ELEMENTARY_CHARGE_C};
 use crate::error::{Error, Result};
 use crate::processes::beam_heating::landau_spitzer_heating_ev_per_s;
-use crate::processes::charge_exchange::gas_number_density_m3;
 use crate::processes::coulomb_logarithm::beam_ion_coulomb_log;
 use crate::processes::excitation_autoionization::single_ionization_cross_sections_cm2;
 use crate::processes::ion_lotz::ionization_cross_sections_cm2;
@@ -29,8 +28,8 @@ pub(crate) struct SpeciesRates {
     /// Charge exchange q → q−1 (s⁻¹) at `cx_reference_ev`, on residual and fed gas.
     pub charge_exchange: Vec<f64>,
     pub cx_reference_ev: f64,
-    /// New 1+ ions per second from the fed neutral gas of this element.
-    pub feed_per_s: f64,
+    /// New ions per second from the fed and residual gases, per charge (index q).
+    pub feed_per_s: Vec<f64>,
     /// Landau–Spitzer heating of one ion of each charge inside the beam (eV/s).
     pub heating_ev_per_s: Vec<f64>,
 }
@@ -91,36 +90,27 @@ impl SpeciesRates {
                 }
             })
             .collect();
-        // Ionization of the fed gas inside the beam volume: n₀ π r_e² L (j/e) σ₀.
+        // Ions from the fed and residual gases: molecules ionized with their molecular
+        // cross section and dissociated by the bundled pattern (one rule, in
+        // `sources::residual_gas`); a noble gas atom with the same single-ionization
+        // channels as the network's 0 → 1 step.
         let beam = &trap.beam;
-        let flux_cm2_s = beam.electron_flux_per_cm2_s();
-        let volume_m3 = std::f64::consts::PI * beam.radius_m * beam.radius_m * trap.length_m;
-        let mut feed_per_s = 0.0;
-        // The same single-ionization channels as the network's 0 → 1 step.
-        let sigma0 = if trap.processes.excitation_autoionization {
-            single_ionization_cross_sections_cm2(
-                element,
-                0,
-                &[beam.energy_ev],
-                trap.lotz_constants,
-            )?[0]
-        } else {
-            ionization_cross_sections_cm2(element, 0, &[beam.energy_ev], trap.lotz_constants)?[0]
+        let atom_sigma = |el: &'static crate::atoms::Element| -> Result<f64> {
+            Ok(if trap.processes.excitation_autoionization {
+                single_ionization_cross_sections_cm2(el, 0, &[beam.energy_ev], trap.lotz_constants)?
+                    [0]
+            } else {
+                ionization_cross_sections_cm2(el, 0, &[beam.energy_ev], trap.lotz_constants)?[0]
+            })
         };
-        for feed in &dynamics.gas_feed {
-            let atoms_per_molecule: u32 = feed
-                .gas
-                .atoms
-                .iter()
-                .filter(|(s, _)| *s == element.symbol())
-                .map(|(_, n)| *n)
-                .sum();
-            if atoms_per_molecule == 0 || !species_takes_feed(species) {
-                continue;
+        let mut feed_per_s = vec![0.0; z + 1];
+        if species_takes_feed(species) {
+            let sources: Vec<_> = dynamics.ion_sources(trap).into_iter().cloned().collect();
+            for p in trap.gas_ion_production(&sources, &atom_sigma)? {
+                if p.element.z() == element.z() && (p.charge as usize) <= z {
+                    feed_per_s[p.charge as usize] += p.per_s;
+                }
             }
-            let n0 = gas_number_density_m3(feed.pressure_pa, trap.gas_temperature_k)
-                * f64::from(atoms_per_molecule);
-            feed_per_s += n0 * volume_m3 * flux_cm2_s * sigma0;
         }
         // Beam heating: n_e = j/(e v), the beam's Coulomb logarithm for each charge.
         let v = beam.speed_m_s();

@@ -91,7 +91,10 @@ impl TrapSystem {
         }
         let electrons = trap.electrons_in_trap();
         let initial: f64 = species.iter().map(|s| s.initial_atoms).sum();
-        let fed: f64 = species.iter().map(|s| s.feed_per_s).sum();
+        let fed: f64 = species
+            .iter()
+            .map(|s| s.feed_per_s.iter().sum::<f64>())
+            .sum();
         // Populations are measured against what the trap can hold and what is put in.
         let scale = initial.max(electrons).max(fed * 1e-3).max(1.0);
         Ok(TrapSystem {
@@ -488,12 +491,14 @@ impl TrapSystem {
                     f[ui] += d.exchange[s][q];
                 }
             }
-            // New 1+ ions from the fed gas, at the gas temperature.
-            if sp.feed_per_s > 0.0 && sp.z >= 1 {
-                f[self.n_index(s, 1)] += sp.feed_per_s;
-                f[self.u_index(s, 1)] += sp.feed_per_s * t_gas;
-                f[i_fed] += sp.feed_per_s;
-                f[self.total_index(FEED_ENERGY_IN)] += 1.5 * sp.feed_per_s * t_gas;
+            // New ions from the fed and residual gases, at the gas temperature.
+            for (q, &feed) in sp.feed_per_s.iter().enumerate() {
+                if feed > 0.0 {
+                    f[self.n_index(s, q)] += feed;
+                    f[self.u_index(s, q)] += feed * t_gas;
+                    f[i_fed] += feed;
+                    f[self.total_index(FEED_ENERGY_IN)] += 1.5 * feed * t_gas;
+                }
             }
         }
     }
