@@ -215,11 +215,14 @@ pub fn beam_cross_sections_cm2(
 pub fn resonance_rate_coefficient_cm3_s(ion: &Ion, temperature_ev: f64) -> Result<f64> {
     require_positive("temperature_ev", temperature_ev)?;
     let kt = temperature_ev;
+    // (kT)^(−3/2) goes inside each exponential: for a tiny kT it overflows while the
+    // Boltzmann factor underflows, and their product is 0, not ∞·0 = NaN.
+    let log_pre = -1.5 * kt.ln();
     let sum: f64 = resonances(ion)
         .iter()
-        .map(|r| r.strength_cm2_ev * r.energy_ev * (-r.energy_ev / kt).exp())
+        .map(|r| r.strength_cm2_ev * r.energy_ev * (log_pre - r.energy_ev / kt).exp())
         .sum();
-    Ok(maxwellian_speed_factor_cm_s() * kt.powf(-1.5) * sum)
+    Ok(maxwellian_speed_factor_cm_s() * sum)
 }
 
 /// Burgess (1965) general-formula DR rate coefficient (cm³ s⁻¹) of the recombining ion at
@@ -238,10 +241,13 @@ pub fn rate_coefficient_cm3_s(ion: &Ion, temperature_ev: f64) -> Result<f64> {
         .map(|k| {
             let x = k.energy_ev / ((z + 1.0) * RYDBERG_EV);
             let a = x.sqrt() / (1.0 + 0.105 * x + 0.015 * x * x);
-            k.oscillator_strength * a * (-beta * k.energy_ev / temperature_ev).exp()
+            // T^(−3/2) inside the exponential, as in the resonance sum above.
+            k.oscillator_strength
+                * a
+                * (-1.5 * t_k.ln() - beta * k.energy_ev / temperature_ev).exp()
         })
         .sum();
-    Ok(3.0e-3 * t_k.powf(-1.5) * b * sum)
+    Ok(3.0e-3 * b * sum)
 }
 
 #[cfg(test)]
@@ -253,6 +259,20 @@ mod tests {
     fn detailed_balance_constant_value() {
         // π²ħ³/m_e = 4.95e-30 cm² eV² s (computed by hand from CODATA 2018).
         assert!((detailed_balance_constant() / 4.950e-30 - 1.0).abs() < 2e-3);
+    }
+
+    #[test]
+    fn tiny_temperatures_give_zero_not_nan() {
+        // The 1M-call fuzz run: kT = 2.2e-308 eV gave ∞·0 = NaN.
+        for (symbol, q) in [("Xe", 12), ("U", 83)] {
+            let ion = element(symbol).unwrap().ion(q).unwrap();
+            for t in [5e-324, 2.2e-308, 1e-300] {
+                assert_eq!(rate_coefficient_cm3_s(&ion, t).unwrap(), 0.0);
+                assert_eq!(resonance_rate_coefficient_cm3_s(&ion, t).unwrap(), 0.0);
+            }
+            let warm = rate_coefficient_cm3_s(&ion, 500.0).unwrap();
+            assert!(warm.is_finite() && warm > 0.0);
+        }
     }
 
     #[test]

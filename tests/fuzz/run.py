@@ -2,6 +2,7 @@
 chargecast, each in a worker process with a memory cap and a watchdog.
 
     python3 tests/fuzz/run.py --calls 1000000 [--workers 2] [--seed 1] [--memory-mib 4096]
+    python3 tests/fuzz/run.py --calls 4000 --only Scenario    # mutated scenario files only
 
 Each worker (this file with ``--worker``) caps its address space (``resource.setrlimit``)
 and runs the calls it is sent one by one; the parent kills and replaces a worker that does
@@ -28,9 +29,11 @@ from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
 SLOW_S = 2.0
+# With --only NAME every call is of that public callable (e.g. Scenario: mutated files).
+ONLY: str | None = None
 
 
-def worker(memory_mib: int) -> None:
+def worker(memory_mib: int, only: str | None) -> None:
     import resource
 
     limit = memory_mib << 20
@@ -44,7 +47,7 @@ def worker(memory_mib: int) -> None:
         rng = random.Random(f"{seed}:{i}")
         t0, c0 = time.perf_counter(), time.process_time()
         try:
-            call = calls.make_call(rng)
+            call = calls.make_call(rng, only)
             outcome, detail = calls.judge(call)
             what = repr(call)
         except BaseException as exc:  # noqa: BLE001 - a generator failure is reported, not fatal
@@ -74,7 +77,7 @@ def describe(seed: int, i: int) -> str:
     import calls
 
     try:
-        return repr(calls.make_call(random.Random(f"{seed}:{i}")))
+        return repr(calls.make_call(random.Random(f"{seed}:{i}"), ONLY))
     except Exception as exc:  # noqa: BLE001
         return f"<call {i}: {exc}>"
 
@@ -82,7 +85,8 @@ def describe(seed: int, i: int) -> str:
 class Worker:
     def __init__(self, memory_mib: int) -> None:
         self.proc = subprocess.Popen(
-            [sys.executable, str(Path(__file__).resolve()), "--worker", "--memory-mib", str(memory_mib)],
+            [sys.executable, str(Path(__file__).resolve()), "--worker", "--memory-mib", str(memory_mib)]
+            + (["--only", ONLY] if ONLY else []),
             stdin=subprocess.PIPE,
             stdout=subprocess.PIPE,
             stderr=subprocess.DEVNULL,
@@ -111,10 +115,13 @@ def main() -> int:
     ap.add_argument("--memory-mib", type=int, default=4096, help="address-space cap of each worker (MiB)")
     ap.add_argument("--watchdog", type=float, default=30.0, help="seconds before a silent worker is killed")
     ap.add_argument("--examples", type=int, default=5, help="examples shown per kind of failure")
+    ap.add_argument("--only", default=None, help="call only this public callable (e.g. Scenario)")
     ap.add_argument("--worker", action="store_true", help=argparse.SUPPRESS)
     args = ap.parse_args()
+    global ONLY
+    ONLY = args.only
     if args.worker:
-        worker(args.memory_mib)
+        worker(args.memory_mib, args.only)
         return 0
 
     counts: Counter[str] = Counter()
