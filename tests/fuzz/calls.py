@@ -268,8 +268,17 @@ class Call:
         return f"{self.label}({', '.join(parts)})"
 
 
+def plan_mutated_scenario(text: str) -> Any:
+    """Parse a (mutated) scenario file and run its plan: the scenario mutation run."""
+    return cc.Scenario.from_text(text).run()
+
+
 def make_call(rng: random.Random, name: str | None = None) -> Call:
-    """A random call, of the public callable ``name`` if given (else of anything)."""
+    """A random call, of the public callable ``name`` if given (else of anything);
+    ``name="plan_mutated_scenario"`` parses and runs a mutated bundled scenario."""
+    if name == "plan_mutated_scenario":
+        text = mutate_scenario(rng, rng.choice(list(cc.bundled_scenarios().values())).read_text("utf-8"))
+        return Call(name, plan_mutated_scenario, [text], {}, ["text"])
     if name is None and rng.random() < 0.3:
         recv = rng.choice(sorted(_receivers()))
         meths = [m for m in methods(recv) if m not in SKIP_METHODS]

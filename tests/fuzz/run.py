@@ -2,7 +2,7 @@
 chargecast, each in a worker process with a memory cap and a watchdog.
 
     python3 tests/fuzz/run.py --calls 1000000 [--workers 2] [--seed 1] [--memory-mib 4096]
-    python3 tests/fuzz/run.py --calls 4000 --only Scenario    # mutated scenario files only
+    python3 tests/fuzz/run.py --calls 3000 --only plan_mutated_scenario   # parse and plan mutated files
 
 Each worker (this file with ``--worker``) caps its address space (``resource.setrlimit``)
 and runs the calls it is sent one by one; the parent kills and replaces a worker that does
