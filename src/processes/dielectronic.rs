@@ -55,6 +55,9 @@
 //! order-of-magnitude estimates (factor 2–3; the KLL group of Fe²⁴⁺ comes out at
 //! 2.0×10⁻¹⁸ cm² eV).
 
+use std::collections::HashMap;
+use std::sync::{Arc, Mutex, OnceLock};
+
 use crate::atoms::Ion;
 use crate::constants::{BOLTZMANN_EV_K, ELECTRON_REST_EV, RYDBERG_EV, SPEED_OF_LIGHT_M_S};
 use crate::error::{require_non_negative, require_positive, Result};
@@ -105,8 +108,23 @@ fn add_weight(states: u32, present: u32, k: u32) -> f64 {
 }
 
 /// The DR resonances of the recombining ion (charge ≥ 1 with at least one electron);
-/// empty for a bare ion or a neutral atom.
-pub fn resonances(ion: &Ion) -> Vec<DrResonance> {
+/// empty for a bare ion or a neutral atom. They depend on the ion alone, so each (Z, q) is
+/// listed once per process and shared: building them (and sorting) was two thirds of the
+/// cost of a trap's rate network.
+pub fn resonances(ion: &Ion) -> Arc<Vec<DrResonance>> {
+    type Cell = Arc<OnceLock<Arc<Vec<DrResonance>>>>;
+    static CACHE: OnceLock<Mutex<HashMap<(u32, u32), Cell>>> = OnceLock::new();
+    let cell: Cell = {
+        let mut map = CACHE
+            .get_or_init(|| Mutex::new(HashMap::new()))
+            .lock()
+            .unwrap_or_else(|p| p.into_inner());
+        Arc::clone(map.entry((ion.element.z(), ion.charge)).or_default())
+    };
+    cell.get_or_init(|| Arc::new(list_resonances(ion))).clone()
+}
+
+fn list_resonances(ion: &Ion) -> Vec<DrResonance> {
     if ion.charge == 0 || ion.electrons() == 0 {
         return Vec::new();
     }

@@ -194,7 +194,7 @@ fn dr_resonances<'py>(
     let value = PyDrResonances {
         symbol: el.symbol().to_string(),
         charge: ion.charge,
-        list,
+        list: list.to_vec(),
     };
     super::results::into_result(py, "DrResonances", value)
 }
