@@ -299,7 +299,9 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
         s,
         &source,
         &fractions_at_extraction,
-        if dynamic_inputs.is_some() {
+        // The dynamic model's inputs already hold its background ions; a plasma's inputs
+        // are the fed gases only, its residual gas comes beside them.
+        if dynamics.is_some() {
             &[]
         } else {
             &residual_fractions
