@@ -54,8 +54,8 @@ class DynamicRun(_core.DynamicRun):
     >>> beam = cc.ElectronBeam(3000.0, 0.1, current_density_a_cm2=300.0)
     >>> trap = cc.BeamTrap(beam, length_m=0.5, residual_gas_pa={"H2": 1e-8}, model="dynamic")
     >>> run = trap.evolve({"Ar": 1e6}, [1e-3, 1e-2])
-    >>> run.model, run.species, run.fractions("Ar").shape
-    ('dynamic', ['Ar'], (2, 19))
+    >>> run.model, run.species, run.fractions("Ar").shape  # H: ions of the residual H2
+    ('dynamic', ['Ar', 'H'], (2, 19))
     >>> bool(run.particle_balance < 1e-9)
     True
     """
