@@ -36,7 +36,11 @@ use crate::error::{require_all_positive, Result};
 
 /// G(b) = ln b + γ + e^b E₁(b) = ∫₀^∞ e^(−x) ln(1 + b/x) dx, for b > 0.
 fn log_average(b: f64) -> f64 {
-    if b < 1e-3 {
+    if b <= 0.0 {
+        // G(b) ~ b ln(1/b) → 0: reached when n²·kT overflows (kT near 1e308 eV), where
+        // the series below would give (−∞)·0 = NaN.
+        0.0
+    } else if b < 1e-3 {
         // e^b E₁(b) = e^b (−γ − ln b − Σ_{k≥1} (−b)^k/(k·k!)): the logarithms cancel to
         // −(ln b + γ)(e^b − 1), leaving no subtraction of large numbers.
         let series = b - b * b / 4.0 + b * b * b / 18.0 - b.powi(4) / 96.0;
@@ -108,6 +112,23 @@ mod tests {
     use super::*;
     use crate::atoms::element;
     use crate::constants::BOLTZMANN_EV_K;
+
+    #[test]
+    fn huge_temperatures_give_a_finite_rate() {
+        // The 1M-call fuzz run: kT = 1e308 eV gave NaN (n²·kT overflowed to ∞, b = 0).
+        for (symbol, q) in [("Xe", 23), ("U", 66), ("Au", 17)] {
+            let v = radiative_recombination_rate_coefficients_cm3_s(
+                element(symbol).unwrap(),
+                q,
+                &[1e308, f64::MAX],
+            )
+            .unwrap();
+            assert!(
+                v.iter().all(|x| x.is_finite() && *x >= 0.0),
+                "{symbol}{q}+: {v:?}"
+            );
+        }
+    }
     use crate::processes::radiative_recombination::kim_pratt_cross_section_cm2;
 
     #[test]
