@@ -74,6 +74,7 @@ def map_samples(
     from chargecast.fit import trap_settings
     from chargecast.uncertainty import uncertainty_factors
 
+    _require_client(client)
     n = _core._as_int("samples", samples)
     c = _core._as_int("chunk", chunk)
     if n < 1 or c < 1:
@@ -99,6 +100,17 @@ def map_samples(
     return np.concatenate(client.gather(futures), axis=0)
 
 
+def _require_client(client: Any) -> None:
+    """ArgumentTypeError unless ``client`` has a client's submit and gather (e.g. a
+    ``dask.distributed.Client``): one check for every entry point that takes one."""
+    from chargecast import _core
+
+    if not (callable(getattr(client, "submit", None)) and callable(getattr(client, "gather", None))):
+        raise _core.ArgumentTypeError(
+            f"invalid client: {type(client).__name__} given, must be a dask.distributed Client"
+        )
+
+
 def map_cases(
     client: Any, trap: Any, elements: Sequence[Any], energies_ev: Any, times_s: Any
 ) -> dict[str, np.ndarray]:
@@ -108,6 +120,7 @@ def map_cases(
     from chargecast import _core
     from chargecast.fit import trap_settings
 
+    _require_client(client)
     settings = trap_settings(trap)
     e = np.asarray(_core._as_float_array("energies_ev", energies_ev), dtype=float).reshape(-1)
     t = np.asarray(_core._as_float_array("times_s", times_s), dtype=float).reshape(-1).tolist()

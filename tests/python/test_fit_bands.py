@@ -235,3 +235,14 @@ def test_dask_cases_equal_local_bit_for_bit(client):
         for i, e in enumerate(energies):
             local = make_trap(energy_ev=e).evolve(el, TIMES).fractions
             assert np.array_equal(out[el][i], local)
+
+
+def test_a_client_that_is_not_one_is_named():
+    # The 1M-call fuzz run (seed 29): client="Ar" ended in AttributeError from dask.py.
+    import chargecast.dask
+
+    trap = make_trap()
+    with pytest.raises(cc.ArgumentTypeError, match="client"):
+        trap.evolve("Ar", TIMES, samples=3, client="Ar")
+    with pytest.raises(cc.ArgumentTypeError, match="client"):
+        chargecast.dask.map_cases(object(), trap, ["Ar"], [2000.0], TIMES)
