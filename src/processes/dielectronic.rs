@@ -55,8 +55,7 @@
 //! order-of-magnitude estimates (factor 2–3; the KLL group of Fe²⁴⁺ comes out at
 //! 2.0×10⁻¹⁸ cm² eV).
 
-use std::collections::HashMap;
-use std::sync::{Arc, Mutex, OnceLock};
+use std::sync::{Arc, OnceLock};
 
 use crate::atoms::Ion;
 use crate::constants::{BOLTZMANN_EV_K, ELECTRON_REST_EV, RYDBERG_EV, SPEED_OF_LIGHT_M_S};
@@ -65,6 +64,7 @@ use crate::processes::core_excitation::{
     autoionization_rate_per_s, core_excitations, shell_occupancy, slater_binding_ev,
 };
 use crate::processes::lotz::maxwellian_speed_factor_cm_s;
+use crate::processes::memo::{get_or_compute, Memo};
 
 /// ħ in eV s (CODATA 2018).
 pub const HBAR_EV_S: f64 = 6.582_119_569e-16;
@@ -112,16 +112,10 @@ fn add_weight(states: u32, present: u32, k: u32) -> f64 {
 /// listed once per process and shared: building them (and sorting) was two thirds of the
 /// cost of a trap's rate network.
 pub fn resonances(ion: &Ion) -> Arc<Vec<DrResonance>> {
-    type Cell = Arc<OnceLock<Arc<Vec<DrResonance>>>>;
-    static CACHE: OnceLock<Mutex<HashMap<(u32, u32), Cell>>> = OnceLock::new();
-    let cell: Cell = {
-        let mut map = CACHE
-            .get_or_init(|| Mutex::new(HashMap::new()))
-            .lock()
-            .unwrap_or_else(|p| p.into_inner());
-        Arc::clone(map.entry((ion.element.z(), ion.charge)).or_default())
-    };
-    cell.get_or_init(|| Arc::new(list_resonances(ion))).clone()
+    static MEMO: Memo<(u32, u32), Arc<Vec<DrResonance>>> = OnceLock::new();
+    get_or_compute(&MEMO, (ion.element.z(), ion.charge), || {
+        Arc::new(list_resonances(ion))
+    })
 }
 
 fn list_resonances(ion: &Ion) -> Vec<DrResonance> {

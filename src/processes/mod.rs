@@ -18,6 +18,7 @@ pub mod ion_collisions;
 pub mod ion_lotz;
 pub mod kramers;
 pub mod lotz;
+pub mod memo;
 pub mod molecular_ionization;
 pub mod photoionization;
 pub mod radial_well;

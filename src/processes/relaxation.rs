@@ -101,10 +101,11 @@
 //! charge in the mean for light and medium elements.
 
 use std::collections::{BinaryHeap, HashMap};
-use std::sync::{Arc, Mutex, OnceLock};
+use std::sync::{Arc, OnceLock};
 
 use crate::atoms::{Element, Ion, Subshell, XrayLevel};
 use crate::error::{Error, Result};
+use crate::processes::memo::{get_or_compute, Memo};
 
 /// Branches below this probability follow only their most probable decay.
 const PRUNE: f64 = 1e-4;
@@ -202,42 +203,25 @@ pub fn vacancy_relaxation_with(
 
 /// Each (element, charge) cascade's data is built once per process.
 fn cascade_for(ion: &Ion) -> Result<Arc<Cascade>> {
-    type Cell = Arc<OnceLock<Result<Arc<Cascade>>>>;
-    static CACHE: OnceLock<Mutex<HashMap<(u32, u32), Cell>>> = OnceLock::new();
-    let cell: Cell = {
-        let mut map = CACHE
-            .get_or_init(|| Mutex::new(HashMap::new()))
-            .lock()
-            .unwrap_or_else(|p| p.into_inner());
-        Arc::clone(map.entry((ion.element.z(), ion.charge)).or_default())
-    };
-    cell.get_or_init(|| Cascade::new(ion).map(Arc::new)).clone()
+    static MEMO: Memo<(u32, u32), Result<Arc<Cascade>>> = OnceLock::new();
+    get_or_compute(&MEMO, (ion.element.z(), ion.charge), || {
+        Cascade::new(ion).map(Arc::new)
+    })
 }
 
-/// Each (element, charge, initial holes, double Auger) cascade runs once per process: the
-/// cache holds one cell per key, and threads that ask for a key being computed wait for it
-/// instead of running the same cascade again (eight threads used to rebuild uranium's
-/// eight times).
+/// Each (element, charge, initial holes, double Auger) cascade runs once per process
+/// ([`crate::processes::memo`]: threads asking for one being computed wait for it).
 fn cached_run(
     ion: &Ion,
     cascade: &Cascade,
     initial: Holes,
     double_auger: bool,
 ) -> Result<Arc<Vec<f64>>> {
-    type Key = (u32, u32, Holes, bool);
-    type Cell = Arc<OnceLock<Arc<Vec<f64>>>>;
-    static CACHE: OnceLock<Mutex<HashMap<Key, Cell>>> = OnceLock::new();
+    static MEMO: Memo<(u32, u32, Holes, bool), Arc<Vec<f64>>> = OnceLock::new();
     let key = (ion.element.z(), ion.charge, initial, double_auger);
-    let cell: Cell = {
-        let mut map = CACHE
-            .get_or_init(|| Mutex::new(HashMap::new()))
-            .lock()
-            .unwrap_or_else(|p| p.into_inner());
-        Arc::clone(map.entry(key).or_default())
-    };
-    Ok(cell
-        .get_or_init(|| Arc::new(cascade.run(initial, double_auger).0))
-        .clone())
+    Ok(get_or_compute(&MEMO, key, || {
+        Arc::new(cascade.run(initial, double_auger).0)
+    }))
 }
 
 /// Largest number of extra electrons energy allows after a vacancy in `subshell` of `ion`:
@@ -656,13 +640,20 @@ impl Cascade {
         f64::from(self.occupancy[i]) - f64::from(holes[i])
     }
 
+    /// The subshells holding holes, deepest first: the order in which holes try to decay.
+    fn holes_deepest_first(&self, holes: &Holes) -> Vec<usize> {
+        let mut order: Vec<usize> = (0..self.subshells.len())
+            .filter(|&i| holes[i] > 0)
+            .collect();
+        order.sort_by(|&a, &b| self.reference_ev[b].total_cmp(&self.reference_ev[a]));
+        order
+    }
+
     /// Outcomes (next state, probability) of the decay of the deepest hole that can decay;
     /// None when the state is final.
     fn step(&self, holes: &Holes, primary: Option<usize>) -> Option<Vec<(Holes, f64)>> {
         let e_now = self.energy(holes);
-        let mut candidates: Vec<usize> = (0..holes.len()).filter(|&i| holes[i] > 0).collect();
-        candidates.sort_by(|&a, &b| self.reference_ev[b].total_cmp(&self.reference_ev[a]));
-        for h in candidates {
+        for h in self.holes_deepest_first(holes) {
             let outcomes = self.decays(holes, h, e_now, primary == Some(h), true);
             let total: f64 = outcomes.iter().map(|o| o.1).sum();
             if total > 0.0 {
@@ -677,9 +668,7 @@ impl Cascade {
     /// every one: a rare branch needs only this, and most cascade states are rare branches.
     fn most_probable(&self, holes: &Holes, primary: Option<usize>) -> Option<Holes> {
         let e_now = self.energy(holes);
-        let mut candidates: Vec<usize> = (0..holes.len()).filter(|&i| holes[i] > 0).collect();
-        candidates.sort_by(|&a, &b| self.reference_ev[b].total_cmp(&self.reference_ev[a]));
-        for h in candidates {
+        for h in self.holes_deepest_first(holes) {
             if primary == Some(h) {
                 // Double Auger shares depend on which channels are allowed: the full step.
                 let outcomes = self.decays(holes, h, e_now, true, true);
