@@ -372,6 +372,7 @@ def set_memory_limit_bytes(limit_bytes: int) -> None: ...
 def memory_limit_bytes() -> int: ...
 
 MAX_SCENARIO_BYTES: int
+BAND_PERCENTILES: list[float]
 
 def _photoionization_subshells(
     element: str | int, charge: int, photon_energies_ev: ArrayLike

@@ -12,6 +12,8 @@ from typing import Any
 
 import numpy as np
 
+from chargecast import _core
+
 __all__ = ["scenario_dict", "to_dict", "to_json"]
 
 # The fields of each source's settings, in the order the schema lists them.
@@ -250,7 +252,7 @@ def to_dict(report: Any) -> dict[str, Any]:
             "samples": u.samples,
             "seed": u.seed,
             "factors": u.factors,
-            "percentiles": [5, 50, 95],
+            "percentiles": list(_core.BAND_PERCENTILES),
             "peak_time_s": list(u.peak_time_s),
             "peak_fraction": list(u.peak_fraction),
             "ions_per_extraction": list(u.ions_per_extraction),

@@ -28,8 +28,8 @@ DEFAULT_FACTORS: dict[str, float] = {
     "charge_correlation": 0.5,
 }
 
-#: The percentiles a band reports.
-BAND_PERCENTILES = (5.0, 50.0, 95.0)
+#: The percentiles a band reports: the core's, so the report and the figures agree.
+BAND_PERCENTILES = tuple(_core.BAND_PERCENTILES)
 
 
 def uncertainty_factors(factors: Optional[Mapping[str, float]] = None) -> dict[str, float]:

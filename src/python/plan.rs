@@ -1249,6 +1249,11 @@ pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<PyRecommendation>()?;
     m.add_class::<PyReportBeam>()?;
     m.add("MAX_SCENARIO_BYTES", crate::plan::MAX_SCENARIO_BYTES)?;
+    // The percentiles of every Monte Carlo band, defined once in the core.
+    m.add(
+        "BAND_PERCENTILES",
+        crate::plan::defaults::BAND_PERCENTILES.to_vec(),
+    )?;
     m.add_class::<PyModelWarning>()?;
     m.add_class::<PyRobustOptimum>()?;
     Ok(())
