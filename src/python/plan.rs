@@ -843,14 +843,21 @@ impl PyReport {
                         if let Err(e) = cb.bind(py).call1((done, total, what)) {
                             let mut slot = failed.lock().unwrap_or_else(|p| p.into_inner());
                             slot.get_or_insert(e);
+                            // Stop the run at its next check instead of finishing it: the
+                            // callback's exception is often KeyboardInterrupt, raised by
+                            // Python's signal handler while the callback was running.
+                            crate::interrupt::cancel();
                         }
                     });
                 }
             })
-        })?;
+        });
         if let Some(e) = failed.into_inner().unwrap_or_else(|p| p.into_inner()) {
+            // This call set the flag (above); every worker has stopped by now.
+            crate::interrupt::reset();
             return Err(e);
         }
+        let report = report?;
         super::errors::warn_all(py, &report.warnings)?;
         Ok(PyReport { inner: report })
     }

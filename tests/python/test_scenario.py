@@ -216,12 +216,20 @@ def test_progress_is_reported_from_the_energy_scan() -> None:
     assert [c[0] for c in calls] == sorted(c[0] for c in calls)
 
 
-def test_an_error_in_the_progress_callback_reaches_the_caller() -> None:
+def test_an_error_in_the_progress_callback_stops_the_run_and_reaches_the_caller() -> None:
+    calls: list[int] = []
+
     def fail(done: int, total: int, what: str) -> None:
+        calls.append(done)
         raise RuntimeError("stop")
 
     with pytest.raises(RuntimeError, match="stop"):
         Scenario.from_text(GOOD, "run.toml").run(progress=fail)
+    # The run stopped at the first failure instead of scanning on to the end (Ctrl-C during
+    # the CLI's progress bar arrives this way, as KeyboardInterrupt raised in the callback).
+    assert calls == [0]
+    # The stop request was cleared: the next run completes.
+    assert Scenario.from_text(GOOD, "run.toml").run().best_energy is not None
 
 
 def test_report_text_has_tables_units_and_cautions(report: cc.Report) -> None:
