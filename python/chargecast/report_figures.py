@@ -442,10 +442,11 @@ def plot_dynamics(report: Any, ax: Any | None = None) -> Any:
         overlap_style = ":"
     q = int(report.scenario.target.charge)
     label = d.target_species
-    t = d.times_s
-    kt = d.temperatures_ev(label)
-    ov = d.overlap(label)
-    n = d.ions(label)
+    run = d.run
+    t = run.times_s
+    kt = run.temperatures_ev(label)
+    ov = run.overlap(label)
+    n = run.ions(label)
     charges = [row.charge for row in d.target_rows]
     # Our look: the target black and heavy, neighbours below it in warm, above it in cool
     # tones of the project palette; a population is drawn only where it holds ions.

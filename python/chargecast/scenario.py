@@ -346,9 +346,10 @@ class Report(_core.Report):
         Model ``"dynamic"``: at the extraction time, ``target_rows`` (the target charge and
         its neighbours: ``ions``, ``temperature_ev``, ``overlap``, ``escape_per_s`` in
         ions/s) and ``species_rows``; ``compensation``, ``well_depth_v``; the bookkeeping
-        (``particles``, ``energy_ev``, ``particle_balance``, ``energy_balance``); and the
-        histories ``ions(species)``, ``temperatures_ev(species)``, ``overlap(species)``,
-        ``escape_per_s(species)`` [T, Z+1] on ``times_s``.
+        (``particles``, ``energy_ev``, ``particle_balance``, ``energy_balance``); and
+        ``run``, the whole ``DynamicRun`` with the histories ``ions(species)``,
+        ``temperatures_ev(species)``, ``overlap(species)``, ``escape_per_s(species)``
+        [T, Z+1] on ``times_s``.
     notes : list of str
     cautions : str
 

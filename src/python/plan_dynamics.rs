@@ -1,15 +1,11 @@
 //! Bindings of the dynamic-model part of a plan report (`Report.dynamics`): rows at the
-//! extraction time and the histories the figure of kT and overlap draws.
+//! extraction time, and the run behind them (a `DynamicRun`, for its histories).
 
 use std::collections::BTreeMap;
 
-use numpy::{PyArray1, PyArray2};
 use pyo3::prelude::*;
 
-use super::{matrix_to_py, to_py};
-use crate::error::Error;
 use crate::plan::DynamicReport;
-use crate::sources::trap_dynamics::SpeciesHistory;
 
 /// One charge state of the target species at the extraction time (dynamic model).
 #[pyclass(name = "DynamicChargeRow", module = "chargecast", frozen, get_all)]
@@ -43,19 +39,6 @@ pub(crate) struct PyDynamicReport {
 impl PyDynamicReport {
     pub(crate) fn new(inner: DynamicReport) -> Self {
         PyDynamicReport { inner }
-    }
-
-    fn history(&self, species: &str) -> PyResult<&SpeciesHistory> {
-        let run = &self.inner.run;
-        run.species(species).ok_or_else(|| {
-            let names: Vec<&str> = run.species.iter().map(|s| s.label.as_str()).collect();
-            Error::invalid(
-                "species",
-                format!("{species:?}"),
-                &format!("the run holds {}", names.join(", ")),
-            )
-            .into()
-        })
     }
 }
 
@@ -167,60 +150,11 @@ impl PyDynamicReport {
             ("thermal", last(&b.thermal_energy_ev)),
         ])
     }
-    /// Output times (s) of the run.
+    /// The whole run behind the report (a ``DynamicRun``: histories of N, kT, escape and
+    /// overlap for every species, compensation and well depth over time).
     #[getter]
-    fn times_s<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        to_py(py, self.inner.run.times_s.clone())
-    }
-    /// Species in the run (scenario species, then fed gases' elements).
-    #[getter]
-    fn species(&self) -> Vec<String> {
-        self.inner
-            .run
-            .species
-            .iter()
-            .map(|s| s.label.clone())
-            .collect()
-    }
-    /// Compensation at every output time.
-    #[getter]
-    fn compensation_history<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        to_py(py, self.inner.run.compensation.to_vec())
-    }
-    /// Radial well depth (V) at every output time.
-    #[getter]
-    fn well_depth_history_v<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
-        to_py(py, self.inner.run.well_depth_v.to_vec())
-    }
-    /// Particles [times, charge 0…Z] of one species (charge 0: neutral atoms in the beam).
-    fn ions<'py>(&self, py: Python<'py>, species: &str) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        Ok(matrix_to_py(py, self.history(species)?.ions.clone()))
-    }
-    /// kT (eV) [times, charge 0…Z] of one species.
-    fn temperatures_ev<'py>(
-        &self,
-        py: Python<'py>,
-        species: &str,
-    ) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        Ok(matrix_to_py(
-            py,
-            self.history(species)?.temperatures_ev.clone(),
-        ))
-    }
-    /// Overlap with the beam (0…1) [times, charge 0…Z] of one species.
-    fn overlap<'py>(&self, py: Python<'py>, species: &str) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        Ok(matrix_to_py(py, self.history(species)?.overlap.clone()))
-    }
-    /// Ions leaving per second (ions/s) [times, charge 0…Z] of one species.
-    fn escape_per_s<'py>(
-        &self,
-        py: Python<'py>,
-        species: &str,
-    ) -> PyResult<Bound<'py, PyArray2<f64>>> {
-        Ok(matrix_to_py(
-            py,
-            self.history(species)?.escape_per_s.clone(),
-        ))
+    fn run<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
+        super::trap_dynamics::PyDynamicRun::result(py, self.inner.run.clone())
     }
 }
 

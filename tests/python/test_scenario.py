@@ -435,7 +435,7 @@ def test_a_light_coolant_raises_the_heavy_targets_fraction(coolant_reports: Pair
     assert rows[0].overlap > rows[1].overlap
     # Without the feed no nitrogen appears (only the residual gas's hydrogen); with it,
     # nitrogen ions are made and escape.
-    assert bare.dynamics.species == ["Ar", "H"]
+    assert bare.dynamics.run.species == ["Ar", "H"]
     n = next(sp for sp in cooled.dynamics.species_rows if sp.label == "N")
     assert n.fed_only and n.ions > 0 and n.escape_per_s > 0
     for r in (cooled, bare):
@@ -446,20 +446,21 @@ def test_a_light_coolant_raises_the_heavy_targets_fraction(coolant_reports: Pair
 def test_dynamic_report_parts_are_consistent(coolant_reports: Pair) -> None:
     r = coolant_reports[0]
     d = r.dynamics
+    run = d.run
     q = 17
-    t = d.times_s
+    t = run.times_s
     np.testing.assert_array_equal(t, r.scenario.times_s)
     assert d.extraction_time_s == r.extraction_time_s
     # The rows are the histories at the extraction time (here a grid time).
     i = int(np.argmin(abs(t - d.extraction_time_s)))
     row = next(row for row in d.target_rows if row.charge == q)
-    assert row.ions == pytest.approx(d.ions("Ar")[i, q], rel=1e-12)
-    assert row.temperature_ev == pytest.approx(d.temperatures_ev("Ar")[i, q], rel=1e-12)
-    assert row.escape_per_s == pytest.approx(d.escape_per_s("Ar")[i, q], rel=1e-12)
-    assert d.compensation == pytest.approx(d.compensation_history[i], rel=1e-12)
+    assert row.ions == pytest.approx(run.ions("Ar")[i, q], rel=1e-12)
+    assert row.temperature_ev == pytest.approx(run.temperatures_ev("Ar")[i, q], rel=1e-12)
+    assert row.escape_per_s == pytest.approx(run.escape_per_s("Ar")[i, q], rel=1e-12)
+    assert d.compensation == pytest.approx(run.compensation[i], rel=1e-12)
     assert [row.charge for row in d.target_rows] == [15, 16, 17, 18]
     # Fractions are the ion numbers normalised; ions per extraction follow from N.
-    n = d.ions("Ar")
+    n = run.ions("Ar")
     np.testing.assert_allclose(r.target_evolution.fractions, n / n.sum(axis=1, keepdims=True), rtol=1e-12)
     iso = r.ions.isotope_share
     assert iso == pytest.approx(0.996035, rel=1e-4)  # 40Ar natural abundance (from memory: 99.60 %)
@@ -468,7 +469,7 @@ def test_dynamic_report_parts_are_consistent(coolant_reports: Pair) -> None:
     assert d.injected_atoms == 1e7 and d.gas_feed_pa == {"N2": 2e-9}
     assert "heating" in d.processes and "ionization_heating" not in d.processes
     with pytest.raises(cc.InvalidParameterError, match="the run holds Ar, N"):
-        d.ions("Kr")
+        run.ions("Kr")
 
 
 def test_every_report_names_its_model(report: cc.Report, coolant_reports: Pair) -> None:
