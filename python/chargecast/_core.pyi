@@ -1347,6 +1347,7 @@ def radiative_recombination_rate_coefficient_cm3_s(
 def charge_exchange_rate_coefficient_cm3_s(
     element: str | int, charge: int, gas: str, ion_temperature_ev: ArrayLike
 ) -> NDArray[np.float64]: ...
+def _quasi_neutrality_note(ion_charge_density_cm3: float, electron_density_cm3: float) -> str | None: ...
 
 @disjoint_base
 class PlasmaState:

@@ -213,14 +213,11 @@ class PlasmaSource(_core.PlasmaSource):
             (the balance has no quasi-neutrality constraint: lower the feed or τ, or raise n_e).
         """
         states = {el: self.steady_state(el) for el in self.elements}
+        n_e = self.electron_density_cm3
         ratio = sum(s.charge_density_ratio for s in states.values())
-        if ratio > 1.0:
-            warnings.warn(
-                f"the ions carry {ratio:.3g} times the electron density's charge: the source is not "
-                "quasi-neutral; lower gas_feed_pa or confinement_time_s, or raise electron_density_cm3",
-                ChargecastWarning,
-                stacklevel=2,
-            )
+        note = _core._quasi_neutrality_note(ratio * n_e, n_e)
+        if note is not None:
+            warnings.warn(note, ChargecastWarning, stacklevel=2)
         return states
 
     def beam_spectrum(self) -> Any:

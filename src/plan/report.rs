@@ -25,10 +25,6 @@ pub const MODEL_FIXED: &str = crate::sources::beam_trap::TrapModel::NAMES[0];
 pub const MODEL_SINGLE_COLLISION: &str = "single_collision";
 /// The zero-dimensional particle balance of [`crate::sources::plasma`].
 pub const MODEL_PLASMA: &str = "plasma_balance";
-/// A note is written when the plasma ions' charge density Σ q·n_q exceeds this multiple
-/// of n_e (the balance imposes no quasi-neutrality; the same limit as the Python
-/// `PlasmaSource.steady_states` warning).
-pub const QUASI_NEUTRALITY_LIMIT: f64 = 1.0;
 
 /// A charge state below this fraction of the isotope's ions is not a practical choice:
 /// the recommendation skips it (and a target peaking below it gets a note).

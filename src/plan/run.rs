@@ -92,13 +92,11 @@ pub fn run(scenario: &Scenario, progress: Progress<'_>) -> Result<Report> {
                 fractions: el.fractions.clone(),
             });
         }
-        let ratio = pr.ion_charge_density_cm3 / pr.electron_density_cm3;
-        if ratio > QUASI_NEUTRALITY_LIMIT {
-            notes.push(format!(
-                "the ions' charge density Σ q·n_q = {:.3e} cm⁻³ is {ratio:.2} × n_e = {:.3e} cm⁻³: the source is not quasi-neutral (the balance does not impose it): lower plasma.gas_feed_pa or confinement_time_s, or raise electron_density_cm3",
-                pr.ion_charge_density_cm3, pr.electron_density_cm3
-            ));
-        }
+        notes.extend(crate::sources::plasma::quasi_neutrality_note(
+            pr.ion_charge_density_cm3,
+            pr.electron_density_cm3,
+            "plasma.",
+        ));
         plasma = Some(pr);
         let map = energy_map(s, &source, target_el, &times, progress)?;
         energy_scan = EnergyScan::Map(map);

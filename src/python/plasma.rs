@@ -461,7 +461,18 @@ impl PyPlasmaSource {
     }
 }
 
+/// The core's note for an over-fed plasma (ions' charge density above the electrons'), or
+/// None; ``PlasmaSource.steady_states`` warns with it.
+#[pyfunction]
+fn _quasi_neutrality_note(
+    ion_charge_density_cm3: f64,
+    electron_density_cm3: f64,
+) -> Option<String> {
+    crate::sources::plasma::quasi_neutrality_note(ion_charge_density_cm3, electron_density_cm3, "")
+}
+
 pub(crate) fn register(m: &Bound<'_, PyModule>) -> PyResult<()> {
+    m.add_function(wrap_pyfunction!(_quasi_neutrality_note, m)?)?;
     m.add_class::<PyPlasmaSource>()?;
     m.add_class::<PyPlasmaState>()?;
     m.add_function(wrap_pyfunction!(

@@ -73,6 +73,25 @@ pub const DEFAULT_NEUTRAL_RESIDENCE_TIME_S: f64 = 1.25e-4;
 /// Plasma volume (m³) when none is given (100 cm³; common practice for a small source).
 pub const DEFAULT_PLASMA_VOLUME_M3: f64 = 1e-4;
 
+/// The ions' charge density Σ q·n_q above this multiple of n_e is reported: the particle
+/// balance does not impose quasi-neutrality, so an over-fed source shows up this way.
+pub const QUASI_NEUTRALITY_LIMIT: f64 = 1.0;
+
+/// The note for ions whose charge density exceeds [`QUASI_NEUTRALITY_LIMIT`] × n_e, or None.
+/// `settings` names the inputs to change: `"plasma."` in a scenario file, `""` in the API.
+pub fn quasi_neutrality_note(
+    ion_charge_density_cm3: f64,
+    electron_density_cm3: f64,
+    settings: &str,
+) -> Option<String> {
+    let ratio = ion_charge_density_cm3 / electron_density_cm3;
+    (ratio > QUASI_NEUTRALITY_LIMIT).then(|| {
+        format!(
+            "the ions' charge density Σ q·n_q = {ion_charge_density_cm3:.3e} cm⁻³ is {ratio:.3} × n_e = {electron_density_cm3:.3e} cm⁻³: the source is not quasi-neutral (the balance does not impose it): lower {settings}gas_feed_pa or {settings}confinement_time_s, or raise {settings}electron_density_cm3"
+        )
+    })
+}
+
 /// The ion confinement time per charge.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Confinement {
