@@ -65,6 +65,11 @@ pub(crate) struct Derived {
     /// Per species, per charge: N ≥ 0, T, overlap, cloud area (m²), ⟨φ⟩ inside (V).
     pub n: Vec<Vec<f64>>,
     pub t: Vec<Vec<f64>>,
+    /// Thermal energy per particle that a moving particle takes along (eV): U/N exactly, so
+    /// that the energy moved is the rate times U. (The regularised T, which the rates use,
+    /// differs from U/N only for nearly empty populations: carried at that T, such a
+    /// population was drained below U = 0, or filled with energy it never let go.)
+    pub carry: Vec<Vec<f64>>,
     pub overlap: Vec<Vec<f64>>,
     pub area: Vec<Vec<f64>>,
     pub mean_phi: Vec<Vec<f64>>,
@@ -170,12 +175,14 @@ impl TrapSystem {
     /// ε at the solver's absolute noise level, so a population too small to resolve takes
     /// the initial temperature for its rates and one well above it its own U/N. U itself,
     /// the conserved quantity, is never altered.
-    fn population(&self, y: &[f64], s: usize, q: usize) -> (f64, f64) {
+    /// N ≥ 0, the regularised T and the carried energy per particle (see [`Derived`]).
+    fn population(&self, y: &[f64], s: usize, q: usize) -> (f64, f64, f64) {
         let eps = self.scale * REGULARISATION;
         let n = y[self.n_index(s, q)].max(0.0);
         let u = y[self.u_index(s, q)].max(0.0);
         let t = ((u + eps * self.initial_temperature_ev) / (n + eps)).max(MIN_TEMPERATURE_EV);
-        (n, t)
+        let carry = if n > 0.0 { u / n } else { t };
+        (n, t, carry)
     }
 
     /// As [`Self::derive`], with the compensation given instead of computed (for the
@@ -184,10 +191,17 @@ impl TrapSystem {
         let sw = self.switches;
         let mut n = Vec::with_capacity(self.species.len());
         let mut t = Vec::with_capacity(self.species.len());
+        let mut carry = Vec::with_capacity(self.species.len());
         let mut charge = 0.0;
         for (s, sp) in self.species.iter().enumerate() {
-            let (ns, ts): (Vec<f64>, Vec<f64>) =
-                (0..=sp.z).map(|q| self.population(y, s, q)).unzip();
+            let (mut ns, mut ts, mut cs) = (Vec::new(), Vec::new(), Vec::new());
+            for q in 0..=sp.z {
+                let (nq, tq, cq) = self.population(y, s, q);
+                ns.push(nq);
+                ts.push(tq);
+                cs.push(cq);
+            }
+            carry.push(cs);
             charge += ns
                 .iter()
                 .enumerate()
@@ -228,6 +242,7 @@ impl TrapSystem {
             well_depth_v: depth,
             n,
             t,
+            carry,
             overlap,
             area,
             mean_phi,
@@ -365,7 +380,7 @@ impl TrapSystem {
     fn derive_changed(&self, base: &Derived, y: &[f64], p: (usize, usize)) -> Derived {
         let mut d = base.clone();
         let (s, q) = p;
-        let (n, t) = self.population(y, s, q);
+        let (n, t, carry) = self.population(y, s, q);
         let was_active = q > 0 && base.n[s][q] > self.negligible();
         // Remove p's old pair terms (with the base values)…
         let sw = self.switches;
@@ -392,6 +407,7 @@ impl TrapSystem {
         // …take the new state of p…
         d.n[s][q] = n;
         d.t[s][q] = t;
+        d.carry[s][q] = carry;
         if q > 0 {
             let cloud = self.well(base.compensation).cloud(q as f64, t);
             if sw.overlap {
@@ -436,7 +452,7 @@ impl TrapSystem {
         for (s, sp) in self.species.iter().enumerate() {
             for q in 0..=sp.z {
                 let n = d.n[s][q];
-                let tq = d.t[s][q];
+                let (tq, tc) = (d.t[s][q], d.carry[s][q]);
                 let (ni, ui) = (self.n_index(s, q), self.u_index(s, q));
                 if n > 0.0 {
                     let ov = d.overlap[s][q];
@@ -445,8 +461,8 @@ impl TrapSystem {
                         let flux = rate * ov * n;
                         f[ni] -= flux;
                         f[self.n_index(s, *to)] += flux;
-                        f[ui] -= flux * tq;
-                        let mut u_in = flux * tq;
+                        f[ui] -= flux * tc;
+                        let mut u_in = flux * tc;
                         if sw.ionization_heating && q > 0 {
                             let gain = flux * d.mean_phi[s][q] * (*to - q) as f64;
                             u_in += 2.0 / 3.0 * gain;
@@ -460,8 +476,8 @@ impl TrapSystem {
                         let flux = (sp.recombination[q] * ov + cx) * n;
                         f[ni] -= flux;
                         f[self.n_index(s, q - 1)] += flux;
-                        f[ui] -= flux * tq;
-                        f[self.u_index(s, q - 1)] += flux * tq;
+                        f[ui] -= flux * tc;
+                        f[self.u_index(s, q - 1)] += flux * tc;
                     }
                     // Beam heating inside the beam.
                     if sw.heating && q > 0 {
@@ -474,7 +490,7 @@ impl TrapSystem {
                     if ax + rad > 0.0 {
                         let out = (ax + rad) * n;
                         let energy = if q == 0 {
-                            1.5 * tq * out
+                            1.5 * tc * out
                         } else {
                             let qf = q as f64;
                             ax * n * escape_energy_ev(qf * self.axial_barrier_v, tq)
