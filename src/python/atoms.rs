@@ -5,7 +5,7 @@ use numpy::PyArray1;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
 
-use super::convert::{array1_arg, float_arg, int_arg, opt_float_arg};
+use super::convert::{float_arg, int_arg, opt_float_arg, per_ion_array};
 use super::{element_arg, guard, to_py};
 use crate::atoms::{Element, Ion};
 use crate::processes::ion_lotz::{
@@ -308,14 +308,14 @@ fn lotz_cross_section_cm2<'py>(
     b: Arg<'_, 'py>,
     c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = array1_arg("energies_ev", energies_ev)?;
-    let charge = int_arg("charge", charge)?;
     let k = constants(a, b, c)?;
-    let out = guard(py, || {
-        ionization_cross_sections_cm2(el, charge, &energies, k)
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("energies_ev", energies_ev),
+        |el, q, e| ionization_cross_sections_cm2(el, q, e, k),
+    )
 }
 
 #[pyfunction]
@@ -329,14 +329,14 @@ fn lotz_rate_coefficient_cm3_s<'py>(
     b: Arg<'_, 'py>,
     c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let temps = array1_arg("temperatures_ev", temperatures_ev)?;
-    let charge = int_arg("charge", charge)?;
     let k = constants(a, b, c)?;
-    let out = guard(py, || {
-        ionization_rate_coefficients_cm3_s(el, charge, &temps, k)
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("temperatures_ev", temperatures_ev),
+        |el, q, t| ionization_rate_coefficients_cm3_s(el, q, t, k),
+    )
 }
 
 #[pyfunction]
@@ -370,15 +370,15 @@ fn _breeding_time_s<'py>(
     b: Arg<'_, 'py>,
     c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = array1_arg("energies_ev", energies_ev)?;
-    let charge = int_arg("charge", charge)?;
     let current_density_a_cm2 = float_arg("current_density_a_cm2", current_density_a_cm2)?;
     let k = constants(a, b, c)?;
-    let out = guard(py, || {
-        breeding_times_s(el, charge, &energies, current_density_a_cm2, k)
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("energies_ev", energies_ev),
+        |el, q, e| breeding_times_s(el, q, e, current_density_a_cm2, k),
+    )
 }
 
 /// The breeding ladder as a dict of equal-length arrays (one entry per step q → q+1).

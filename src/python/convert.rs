@@ -87,6 +87,24 @@ pub(crate) fn guard<T: Send>(py: Python<'_>, f: impl FnOnce() -> Result<T> + Sen
     }
 }
 
+/// The shape every per-ion array function shares: `element`, `charge` and one array of
+/// energies or temperatures (`values`, called `name` in messages) in, `compute(element,
+/// charge, values)` run with the GIL released, a numpy array out. The arguments are read in
+/// that order, so the first bad one is the one named.
+pub(crate) fn per_ion_array<'py>(
+    py: Python<'py>,
+    element: &Bound<'py, PyAny>,
+    charge: &Bound<'py, PyAny>,
+    (name, values): (&str, &Bound<'py, PyAny>),
+    compute: impl FnOnce(&'static Element, i64, &[f64]) -> Result<Vec<f64>> + Send,
+) -> PyResult<Bound<'py, PyArray1<f64>>> {
+    let el = element_arg(element)?;
+    let values = array1_arg(name, values)?;
+    let charge = int_arg("charge", charge)?;
+    let out = guard(py, || compute(el, charge, &values))?;
+    Ok(to_py(py, out))
+}
+
 /// Helpers to hand vectors and matrices back to numpy.
 pub(crate) fn to_py<'py>(py: Python<'py>, v: Vec<f64>) -> Bound<'py, PyArray1<f64>> {
     v.into_pyarray(py)

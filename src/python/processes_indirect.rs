@@ -7,7 +7,7 @@ use numpy::PyArray1;
 use pyo3::prelude::*;
 
 use super::atoms::{constants, Arg};
-use super::convert::{array1_arg, float_arg, int_arg};
+use super::convert::{float_arg, int_arg, per_ion_array};
 use super::{element_arg, guard, to_py};
 use crate::error::require_all_positive;
 use crate::processes::dielectronic::{
@@ -30,14 +30,14 @@ fn ionization_cross_section_cm2<'py>(
     b: Arg<'_, 'py>,
     c: Arg<'_, 'py>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = array1_arg("energies_ev", energies_ev)?;
-    let charge = int_arg("charge", charge)?;
     let k = constants(a, b, c)?;
-    let out = guard(py, || {
-        single_ionization_cross_sections_cm2(el, charge, &energies, k)
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("energies_ev", energies_ev),
+        |el, q, e| single_ionization_cross_sections_cm2(el, q, e, k),
+    )
 }
 
 #[pyfunction]
@@ -47,14 +47,16 @@ fn excitation_autoionization_cross_section_cm2<'py>(
     charge: &Bound<'py, PyAny>,
     energies_ev: &Bound<'py, PyAny>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = array1_arg("energies_ev", energies_ev)?;
-    let charge = int_arg("charge", charge)?;
-    let out = guard(py, || {
-        require_all_positive("energies_ev", &energies)?;
-        Ok(ea_cross_sections(&ionizable_ion(el, charge)?, &energies))
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("energies_ev", energies_ev),
+        |el, q, e| {
+            require_all_positive("energies_ev", e)?;
+            Ok(ea_cross_sections(&ionizable_ion(el, q)?, e))
+        },
+    )
 }
 
 #[pyfunction]
@@ -64,14 +66,16 @@ fn excitation_autoionization_rate_coefficient_cm3_s<'py>(
     charge: &Bound<'py, PyAny>,
     temperatures_ev: &Bound<'py, PyAny>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let temps = array1_arg("temperatures_ev", temperatures_ev)?;
-    let charge = int_arg("charge", charge)?;
-    let out = guard(py, || {
-        let ion = ionizable_ion(el, charge)?;
-        temps.iter().map(|t| ea_rate(&ion, *t)).collect()
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("temperatures_ev", temperatures_ev),
+        |el, q, t| {
+            let ion = ionizable_ion(el, q)?;
+            t.iter().map(|t| ea_rate(&ion, *t)).collect()
+        },
+    )
 }
 
 #[pyfunction]
@@ -81,14 +85,16 @@ fn dielectronic_rate_coefficient_cm3_s<'py>(
     charge: &Bound<'py, PyAny>,
     temperatures_ev: &Bound<'py, PyAny>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let temps = array1_arg("temperatures_ev", temperatures_ev)?;
-    let charge = int_arg("charge", charge)?;
-    let out = guard(py, || {
-        let ion = el.ion(charge)?;
-        temps.iter().map(|t| dr_rate(&ion, *t)).collect()
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("temperatures_ev", temperatures_ev),
+        |el, q, t| {
+            let ion = el.ion(q)?;
+            t.iter().map(|t| dr_rate(&ion, *t)).collect()
+        },
+    )
 }
 
 #[pyfunction]
@@ -99,15 +105,17 @@ fn dielectronic_cross_section_cm2<'py>(
     energies_ev: &Bound<'py, PyAny>,
     energy_spread_ev: &Bound<'py, PyAny>,
 ) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let el = element_arg(element)?;
-    let energies = array1_arg("energies_ev", energies_ev)?;
-    let charge = int_arg("charge", charge)?;
     let spread = float_arg("energy_spread_ev", energy_spread_ev)?;
-    let out = guard(py, || {
-        require_all_positive("energies_ev", &energies)?;
-        beam_cross_sections_cm2(&el.ion(charge)?, &energies, spread)
-    })?;
-    Ok(to_py(py, out))
+    per_ion_array(
+        py,
+        element,
+        charge,
+        ("energies_ev", energies_ev),
+        |el, q, e| {
+            require_all_positive("energies_ev", e)?;
+            beam_cross_sections_cm2(&el.ion(q)?, e, spread)
+        },
+    )
 }
 
 /// The dielectronic resonance groups of one recombining ion, one entry per core
