@@ -97,6 +97,24 @@ pub fn integrate_stiff<S: StiffSystem>(
     times_s: &[f64],
     tolerances: &StiffTolerances,
 ) -> Result<Array2<f64>> {
+    integrate_stiff_within(system, initial, times_s, tolerances, MAX_STEPS)?.ok_or_else(|| {
+        Error::invalid(
+            "times_s",
+            format!("… {}", times_s.last().copied().unwrap_or(0.0)),
+            &format!("needs more than {MAX_STEPS} solver steps; check the rates"),
+        )
+    })
+}
+
+/// [`integrate_stiff`] with at most `max_steps` steps: `None` once they are spent (a
+/// caller that searches, such as the steady state, stops there instead of running on).
+pub fn integrate_stiff_within<S: StiffSystem>(
+    system: &S,
+    initial: &[f64],
+    times_s: &[f64],
+    tolerances: &StiffTolerances,
+    max_steps: usize,
+) -> Result<Option<Array2<f64>>> {
     let n = system.dim();
     if initial.len() != n || tolerances.atol.len() != n {
         return Err(Error::invalid(
@@ -117,7 +135,7 @@ pub fn integrate_stiff<S: StiffSystem>(
     }
     let later = &times_s[first..];
     if later.is_empty() {
-        return Ok(out);
+        return Ok(Some(out));
     }
     // Jacobian cache: diffsol asks for J·v once per unit vector when it refreshes its matrix.
     // The cache also holds Jᵀ, so that J·v sums only the columns of v's non-zero entries:
@@ -162,7 +180,8 @@ pub fn integrate_stiff<S: StiffSystem>(
         .map_err(solver_error)?;
     // diffsol stops after 5000 steps by default; tight tolerances over long times need
     // more, and the interrupt check below lets a caller stop a long solve instead.
-    problem.ode_options.max_number_timesteps = MAX_STEPS;
+    // One more than our own count below, which stops first.
+    problem.ode_options.max_number_timesteps = max_steps.saturating_add(1);
     let mut solver = problem.bdf::<NalgebraLU<f64>>().map_err(solver_error)?;
     // Step by step (not diffsol's one-call dense solve) so that a stop request is seen
     // between steps: each step costs at most a few Jacobians, well under the 0.5 s the
@@ -170,8 +189,13 @@ pub fn integrate_stiff<S: StiffSystem>(
     let final_time = later[later.len() - 1];
     solver.set_stop_time(final_time).map_err(solver_error)?;
     let mut col = 0;
+    let mut steps = 0;
     while col < later.len() {
         crate::interrupt::check()?;
+        steps += 1;
+        if steps > max_steps {
+            return Ok(None);
+        }
         let reason = solver.step().map_err(solver_error)?;
         let t_now = solver.state().t;
         while col < later.len() && later[col] <= t_now {
@@ -200,7 +224,7 @@ pub fn integrate_stiff<S: StiffSystem>(
             "the nonlinear solve did not reach every output time with finite values",
         ));
     }
-    Ok(out)
+    Ok(Some(out))
 }
 
 fn solver_error(e: diffsol::DiffsolError) -> Error {

@@ -297,3 +297,21 @@ fn a_fed_trap_settles_and_every_state_stays_non_negative() {
         assert!(worst / total < 1e-6, "{label}: {:e}", worst / total);
     }
 }
+
+/// A trap that keeps the stiff solver at short steps (heavy feed, rich residual gas) is
+/// refused once the search's step budget is spent, instead of running for half an hour.
+#[test]
+fn a_steady_state_search_stops_at_its_step_budget() {
+    let beam = ElectronBeam::with_current_density(20_000.0, 0.3, 100.0).unwrap();
+    let trap = BeamTrap::builder(beam, 0.6)
+        .residual_gas_pa(vec![("H2".into(), 1e-8), ("CO".into(), 1e-9)])
+        .model("dynamic")
+        .axial_barrier_v(200.0)
+        .gas_feed_pa(vec![("Kr".into(), 1e-9), ("N2".into(), 1e-8)])
+        .build()
+        .unwrap();
+    let dynamics = trap.model.dynamics().unwrap();
+    let err = dynamics.steady_state_within(&trap, &[], 200).unwrap_err();
+    let msg = err.to_string();
+    assert!(msg.contains("after 200 solver steps"), "{msg}");
+}
