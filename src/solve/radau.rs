@@ -22,9 +22,9 @@
 //! with h/2; the difference estimates the local error of the single step, and the two half
 //! steps are kept, whose error is asymptotically that difference over 2⁹ − 1 (E. Hairer,
 //! S. P. Nørsett and G. Wanner, *Solving ODEs I*, 2nd ed. (1993), §II.4); the tolerance
-//! applies to the kept solution, credited with a factor 2⁶ only (see
-//! `KEPT_ERROR_DIVISOR`). Steps follow the error control alone (only the last one is shortened to end at
-//! the last output time).
+//! applies to the kept solution, credited with a factor 2⁶ only (see `KEPT_ERROR_DIVISOR`).
+//! Steps follow the error control alone (only the last one is shortened to end at the last
+//! output time).
 //!
 //! **Dense output.** Outputs inside a step are read off the collocation polynomial of the
 //! half step that holds them: the degree-5 polynomial through the step's start and its five
@@ -339,12 +339,7 @@ impl Stepper {
         let basis = collocation_basis(phi);
         let row = &mut row[..start.len()];
         collocation_values(&basis, start, end, stages, |i, value| {
-            let value = if value.abs() < f64::MIN_POSITIVE {
-                0.0
-            } else {
-                value
-            };
-            row[i] = clipped(value, clip);
+            row[i] = clipped(flushed(value), clip);
         });
     }
 }
@@ -669,9 +664,17 @@ fn propagate_all(
 /// a step size that shrinks to resolve subnormal noise.
 fn flush_underflow(y: &mut [f64]) {
     for v in y.iter_mut() {
-        if v.abs() < f64::MIN_POSITIVE {
-            *v = 0.0;
-        }
+        *v = flushed(*v);
+    }
+}
+
+/// One value as [`flush_underflow`] leaves it.
+#[inline(always)]
+fn flushed(v: f64) -> f64 {
+    if v.abs() < f64::MIN_POSITIVE {
+        0.0
+    } else {
+        v
     }
 }
 

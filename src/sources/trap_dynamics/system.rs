@@ -171,11 +171,11 @@ impl TrapSystem {
         self.derive_with(y, None)
     }
 
-    /// The state's N ≥ 0 and regularised T of population (s, q): T = (U + ε T₀)/(N + ε),
-    /// ε at the solver's absolute noise level, so a population too small to resolve takes
-    /// the initial temperature for its rates and one well above it its own U/N. U itself,
+    /// The state's N ≥ 0, regularised T and carried energy per particle of population
+    /// (s, q): T = (U + ε T₀)/(N + ε), ε at the solver's absolute noise level, so a
+    /// population too small to resolve takes the initial temperature for its rates and one
+    /// well above it its own U/N; the carried energy is U/N itself (see [`Derived`]). U,
     /// the conserved quantity, is never altered.
-    /// N ≥ 0, the regularised T and the carried energy per particle (see [`Derived`]).
     fn population(&self, y: &[f64], s: usize, q: usize) -> (f64, f64, f64) {
         let eps = self.scale * REGULARISATION;
         let n = y[self.n_index(s, q)].max(0.0);
